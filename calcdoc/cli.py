@@ -1,0 +1,214 @@
+"""Command line only: parse arguments, call the library, map errors to exit codes.
+
+Exit status: 0 success; 1 a check failed (``check --strict``), ``--final`` refused, or verify/diff
+found a difference; 2 bad input or usage, with ``FILE:LINE:COL: error: ...`` on stderr and
+nothing written.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+
+from calcdoc import __version__
+from calcdoc.errors import FinalRefused, InputError, InputErrors
+
+__all__ = ["main"]
+
+
+def _print_errors(errors) -> None:
+    for err in errors:
+        print(str(err), file=sys.stderr)
+    count = len(errors)
+    print(f"calcdoc: {count} error{'s' if count != 1 else ''}; nothing written",
+          file=sys.stderr)
+
+
+def cmd_build(args) -> int:
+    from calcdoc.build import build
+    report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final)
+    failed = [c for s in report.package.sheets for c in s.checks if not c.passed]
+    times = ", ".join(f"{k} {v:.2f} s" for k, v in report.timings.items())
+    print(f"built {report.out_dir} ({len(report.files)} files; {times})")
+    if failed:
+        print(f"{len(failed)} check(s) FAIL: see the summary of results")
+    return 0
+
+
+def cmd_check(args) -> int:
+    from calcdoc.archive import results_document
+    from calcdoc.evaluate import evaluate_project
+    from calcdoc.project import load_project
+    package = evaluate_project(load_project(args.project))
+    failed = []
+    if args.json:
+        print(json.dumps(results_document(package), indent=1, ensure_ascii=False))
+    for sheet in package.sheets:
+        if not args.json:
+            print(f"{sheet.id}  {sheet.spec.title}")
+        for block in sheet.blocks:
+            if not args.json:
+                print(f"  {block.key}  {block.spec.title}")
+                for name, r in block.output.results.items():
+                    print(f"    {name} = {r.display}")
+                for name, why in block.output.absent.items():
+                    print(f"    {name}: {why}")
+                for w in block.output.warnings:
+                    print(f"    warning: {w['message']}")
+            for c in block.checks:
+                if not c.passed:
+                    failed.append((block, c))
+                if not args.json:
+                    mark = "PASS" if c.passed else "FAIL"
+                    rel = "<=" if c.relation == "at_most" else ">="
+                    print(f"    check {c.result}: {c.value_display} {rel} {c.limit_display}"
+                          f"  {mark}")
+    if failed:
+        out = sys.stderr if args.json else sys.stdout
+        print(f"{len(failed)} check(s) failed:", file=out)
+        for block, c in failed:
+            print(f"  {block.key}.{c.result}: {c.value_display} against {c.limit_display}",
+                  file=out)
+    return 1 if failed and args.strict else 0
+
+
+def cmd_kinds(args) -> int:
+    from calcdoc.kinds import registry
+    from calcdoc.project import load_named_values
+    kinds = registry()
+    if args.kind is None:
+        print("Kinds:")
+        for kind in kinds.values():
+            print(f"  {kind.name:<22} {kind.summary}")
+        print("\nNamed values ({named: NAME}):")
+        for name, entry in load_named_values().items():
+            print(f"  {name:<28} {entry['value']:<14} {entry.get('title', '')}")
+            print(f"  {'':<28} source: {entry.get('source', '')}")
+        return 0
+    kind = kinds.get(args.kind)
+    if kind is None:
+        from calcdoc.kinds.base import did_you_mean
+        hint = did_you_mean(args.kind, kinds)
+        print(f"calcdoc: error: unknown kind '{args.kind}' (expected one of "
+              f"{', '.join(kinds)}, got {args.kind!r})" + (f"; hint: {hint}" if hint else ""),
+              file=sys.stderr)
+        return 2
+    d = kind.describe()
+    print(f"{kind.name} — {kind.title}\n{kind.summary}\n\nInputs:")
+
+    def show(fields, indent="  "):
+        for f in fields:
+            print(f"{indent}{f['name']}: {f['type']}; {f['default']}"
+                  + (f"; range {f['range']}" if f['range'] else ""))
+            if f["meaning"]:
+                print(f"{indent}    {f['meaning']}")
+            if f["source"]:
+                print(f"{indent}    default from: {f['source']}")
+            if "fields" in f:
+                show(f["fields"], indent + "    ")
+    show(d["inputs"])
+    for group in d["exactly_one"]:
+        print(f"  exactly one of: {', '.join(group)}")
+    print("\nResults:")
+    if kind.open_results:
+        print("  one result per step, named by the step, in the step's unit")
+    for r in d["results"]:
+        print(f"  {r['name']} [{r['unit']}]: {r['meaning']}")
+    if kind.caution:
+        print(f"\nCaution: {kind.caution}")
+    return 0
+
+
+def cmd_new(args) -> int:
+    from calcdoc.starter import write_starter
+    written = write_starter(Path(args.dir))
+    print(f"wrote a starter project in {args.dir} ({len(written)} files); "
+          f"build it with: calcdoc build {args.dir}")
+    return 0
+
+
+def cmd_verify(args) -> int:
+    from calcdoc.archive import verify
+    lines = verify(Path(args.path))
+    for line in lines:
+        print(line)
+    if lines:
+        print(f"{args.path}: results differ from a fresh evaluation of the archived inputs")
+        return 1
+    print(f"{args.path}: verified — a fresh evaluation of the archived inputs gives the "
+          f"recorded results")
+    return 0
+
+
+def cmd_diff(args) -> int:
+    from calcdoc.archive import diff
+    lines = diff(Path(args.old), Path(args.new))
+    for line in lines:
+        print(line)
+    if not lines:
+        print("no differences in inputs, results or checks")
+    return 1 if lines else 0
+
+
+def parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="calcdoc", description="Calculation sheets in YAML, "
+                                "evaluated with units checked, issued as HTML and PDF.")
+    p.add_argument("--version", action="version", version=f"calcdoc {__version__}")
+    sub = p.add_subparsers(dest="command", required=True)
+    b = sub.add_parser("build", help="evaluate and write the site, PDF, results and manifest")
+    b.add_argument("project")
+    b.add_argument("--out", help="output folder (default build/<project name>)")
+    b.add_argument("--no-pdf", action="store_true", help="skip the PDF")
+    b.add_argument("--final", action="store_true",
+                   help="refuse unless approved, checked, passing and with no open comment")
+    b.set_defaults(func=cmd_build)
+    c = sub.add_parser("check", help="evaluate and print results and failed checks; no files")
+    c.add_argument("project")
+    c.add_argument("--json", action="store_true", help="print results.json instead")
+    c.add_argument("--strict", action="store_true", help="exit 1 when a check fails")
+    c.set_defaults(func=cmd_check)
+    k = sub.add_parser("kinds", help="list kinds, or one kind's inputs and results")
+    k.add_argument("kind", nargs="?")
+    k.set_defaults(func=cmd_kinds)
+    n = sub.add_parser("new", help="write a small starter project")
+    n.add_argument("dir")
+    n.set_defaults(func=cmd_new)
+    v = sub.add_parser("verify", help="re-evaluate an archived build or PDF and compare")
+    v.add_argument("path")
+    v.set_defaults(func=cmd_verify)
+    d = sub.add_parser("diff", help="what changed between two builds")
+    d.add_argument("old")
+    d.add_argument("new")
+    d.set_defaults(func=cmd_diff)
+    return p
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = parser().parse_args(argv)
+    try:
+        return args.func(args)
+    except InputErrors as errs:
+        _print_errors(errs.errors)
+        return 2
+    except InputError as err:
+        _print_errors([err])
+        return 2
+    except FinalRefused as refused:
+        print("calcdoc: --final refused:", file=sys.stderr)
+        for reason in refused.reasons:
+            print(f"  - {reason}", file=sys.stderr)
+        return 1
+    except FileNotFoundError as exc:
+        print(f"{exc.filename}: error: not found", file=sys.stderr)
+        return 2
+    except (ValueError, OSError) as exc:
+        if args.command in ("verify", "diff"):
+            print(f"calcdoc: error: {exc}", file=sys.stderr)
+            return 2
+        raise
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,289 @@
+"""Reference resolution, cycle detection and evaluation of every block in dependency order."""
+
+from __future__ import annotations
+
+import math
+
+from calcdoc.errors import InputError, InputErrors, Location
+from calcdoc.kinds import get_kind
+from calcdoc.kinds.base import (ABSOLUTE, BlockOutput, InputContext, Quantity, ResolvedRef,
+                                _Invalid, convert_fields, did_you_mean)
+from calcdoc.located import Node
+from calcdoc.model import (BlockSpec, CheckResult, EvaluatedBlock, EvaluatedSheet, Package,
+                           Project)
+from calcdoc.physics import PhysicsRangeError
+from calcdoc.units import UnitProblem, dimension_text, format_number, format_quantity
+
+__all__ = ["evaluate_project", "parse_ref"]
+
+
+def parse_ref(text: str, sheet_id: str) -> tuple[str, str, str] | None:
+    """Return (sheet, block, result) for 'SHEET.block.result' or 'block.result'; else None."""
+    parts = str(text).split(".")
+    if len(parts) == 3 and all(parts):
+        return parts[0], parts[1], parts[2]
+    if len(parts) == 2 and all(parts):
+        return sheet_id, parts[0], parts[1]
+    return None
+
+
+def _refs_in(node: Node | None):
+    """Yield every ``{ref: ...}`` value node under ``node``."""
+    if node is None:
+        return
+    if node.is_map:
+        if "ref" in node.value:
+            yield node.value["ref"]
+        for value in node.value.values():
+            yield from _refs_in(value)
+    elif node.is_list:
+        for value in node.value:
+            yield from _refs_in(value)
+
+
+def _order(project: Project, errors: list[InputError]) -> list[BlockSpec]:
+    """Return blocks in dependency order (document order where free); record bad refs, cycles."""
+    blocks = {b.key: b for s in project.sheets for b in s.blocks}
+    sheets = {s.id for s in project.sheets}
+    deps: dict[str, list[str]] = {}
+    for key, block in blocks.items():
+        deps[key] = []
+        for ref_node in _refs_in(block.inputs):
+            parsed = parse_ref(ref_node.value, block.sheet_id)
+            if parsed is None:
+                errors.append(InputError(
+                    ref_node.loc, f"{key}.inputs", "malformed reference",
+                    "'SHEET.block.result' or 'block.result'", repr(ref_node.value)))
+                continue
+            target = f"{parsed[0]}.{parsed[1]}"
+            if target not in blocks:
+                options = [k for k in blocks]
+                hint = did_you_mean(target, options)
+                what = (f"reference to unknown sheet '{parsed[0]}'" if parsed[0] not in sheets
+                        else f"reference to unknown block '{target}'")
+                errors.append(InputError(ref_node.loc, f"{key}.inputs", what,
+                                         "an existing SHEET.block", repr(ref_node.value), hint))
+                continue
+            if target == key:
+                errors.append(InputError(ref_node.loc, f"{key}.inputs",
+                                         "a block refers to its own result",
+                                         "a result of another block", repr(ref_node.value)))
+                continue
+            deps[key].append(target)
+
+    order: list[str] = []
+    state: dict[str, int] = {}  # 1 visiting, 2 done
+
+    def visit(key: str, stack: list[str]):
+        if state.get(key) == 2:
+            return
+        if state.get(key) == 1:
+            cycle = stack[stack.index(key):] + [key]
+            first = blocks[cycle[0]]
+            errors.append(InputError(first.loc, first.key, "circular references",
+                                     "blocks that do not depend on themselves",
+                                     " → ".join(cycle)))
+            return
+        state[key] = 1
+        for dep in deps[key]:
+            visit(dep, stack + [key])
+        state[key] = 2
+        order.append(key)
+
+    for key in blocks:
+        visit(key, [])
+    return [blocks[k] for k in order]
+
+
+def evaluate_project(project: Project) -> Package:
+    """Return the evaluated package; raise InputErrors listing every problem found."""
+    errors: list[InputError] = []
+    ordered = _order(project, errors)
+    done: dict[str, EvaluatedBlock] = {}
+    failed: set[str] = set()
+
+    for spec in ordered:
+        block = _evaluate_block(spec, project, done, failed, errors)
+        if block is None:
+            failed.add(spec.key)
+        else:
+            done[spec.key] = block
+
+    if errors:
+        raise InputErrors(errors)
+    sheets = [EvaluatedSheet(s, [done[b.key] for b in s.blocks]) for s in project.sheets]
+    return Package(project, sheets)
+
+
+class _DependsOnFailed(Exception):
+    pass
+
+
+def _resolver(spec: BlockSpec, done: dict, failed: set):
+    def resolve(ref_node: Node, path: str) -> ResolvedRef:
+        parsed = parse_ref(ref_node.value, spec.sheet_id)
+        sheet, block, result = parsed
+        key = f"{sheet}.{block}"
+        if key in failed or key not in done:
+            raise _DependsOnFailed
+        target = done[key]
+        out = target.output
+        name = f"{key}.{result}"
+        if result in out.series and result not in out.results:
+            s = out.series[result]
+            return ResolvedRef(name, None, s.y_unit, ABSOLUTE if s.y_unit == "K" else None,
+                               s.label or name, obj=s.obj)
+        if result in out.results:
+            r = out.results[result]
+            return ResolvedRef(name, r.value, r.spec.unit, r.spec.temperature, r.display)
+        if result in out.absent:
+            raise InputError(ref_node.loc, f"{spec.key}.inputs.{path}",
+                             f"referenced result {name} does not exist", "an existing result",
+                             out.absent[result])
+        options = list(out.results) + list(out.series)
+        raise InputError(ref_node.loc, f"{spec.key}.inputs.{path}",
+                         f"unknown result '{result}' of {key}",
+                         "one of " + ", ".join(options), repr(result),
+                         did_you_mean(result, options))
+    return resolve
+
+
+def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
+    kind = get_kind(spec.kind)
+    if kind is None:
+        return None  # reported by the loader
+    ctx = InputContext(materials=project.materials, named=project.named,
+                       resolve_ref=_resolver(spec, done, failed), sheet_id=spec.sheet_id,
+                       block_id=spec.id, precision=project.precision)
+    node = spec.inputs if spec.inputs is not None else Node({}, spec.loc)
+    try:
+        inp = convert_fields(kind.inputs, node, ctx, "", kind.exactly_one, kind.at_most_one)
+    except (_Invalid, _DependsOnFailed):
+        errors.extend(ctx.errors)
+        return None
+    except InputError as err:
+        errors.extend(ctx.errors + [err])
+        return None
+    if ctx.errors:  # pragma: no cover - convert_fields raises when it records errors
+        errors.extend(ctx.errors)
+        return None
+    for result, unit in spec.display.items():
+        declared = kind.result_spec(result)
+        if declared is None and not kind.open_results:
+            errors.append(InputError(spec.loc, f"{spec.key}.display.{result}",
+                                     f"unknown result '{result}'",
+                                     "one of " + ", ".join(r.name for r in kind.results),
+                                     repr(result),
+                                     did_you_mean(result, [r.name for r in kind.results])))
+        elif declared is not None:
+            try:
+                ok = dimension_text(unit) == dimension_text(declared.unit)
+            except UnitProblem:
+                ok = False
+            if not ok:
+                errors.append(InputError(spec.loc, f"{spec.key}.display.{result}",
+                                         "display unit of the wrong dimension",
+                                         dimension_text(declared.unit), repr(unit)))
+    out = BlockOutput(kind, project.precision, spec.display)
+    try:
+        kind.compute(inp, out)
+    except PhysicsRangeError as exc:
+        errors.append(InputError(_locate(exc, ctx.records, spec), spec.key,
+                                 f"{exc.quantity} is outside the range of the method",
+                                 exc.expected, _got(exc)))
+        return None
+    except InputError as err:
+        errors.append(err)
+        return None
+    checks = []
+    for check in spec.checks:
+        result = _check(check, spec, out, project, errors)
+        if result is not None:
+            checks.append(result)
+    return EvaluatedBlock(spec=spec, kind=kind, inputs=ctx.records, output=out, checks=checks)
+
+
+def _got(exc) -> str | None:
+    value = getattr(exc, "value", None)
+    if value is None:
+        return None
+    return format_number(value, 4) if isinstance(value, (int, float)) else str(value)
+
+
+def _locate(exc, records, spec) -> Location:
+    name = getattr(exc, "quantity", None)
+    if name:
+        for r in records:
+            if r.loc is not None and (r.path == name or r.path.endswith("." + name)):
+                return r.loc
+    return spec.loc
+
+
+def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
+    where = f"{spec.key}.checks.{check.result}"
+    declared = out._specs.get(check.result)
+    if declared is None:
+        options = list(out._specs)
+        errors.append(InputError(check.loc, where, f"check on unknown result '{check.result}'",
+                                 "one of " + ", ".join(options), repr(check.result),
+                                 did_you_mean(check.result, options)))
+        return None
+    if declared.list:
+        errors.append(InputError(check.loc, where, "a check needs a single-valued result",
+                                 "a scalar result", f"the list result {check.result}"))
+        return None
+    ctx = InputContext(materials=project.materials, named=project.named,
+                       resolve_ref=lambda n, p: (_ for _ in ()).throw(InputError(
+                           n.loc, where, "a check limit cannot be a reference",
+                           "a quantity or {named: ...}", repr(n.value))),
+                       sheet_id=spec.sheet_id, block_id=spec.id, precision=project.precision)
+    field = Quantity(check.result, meaning="limit", unit=declared.unit,
+                     temperature=declared.temperature)
+    try:
+        limit = field.convert(check.limit_node, ctx, f"checks.{check.result}")
+    except (_Invalid, InputError) as exc:
+        errors.extend(ctx.errors or [exc])
+        return None
+    source = check.source or (ctx.records[0].source if ctx.records else "")
+    shown = out.display_overrides.get(check.result) or declared.display_unit()
+    sig = project.precision
+
+    if check.result not in out.results:
+        why = out.absent.get(check.result, "not computed")
+        until = out.simulated_until
+        if check.relation == "at_least" and until is not None:
+            if until + 1e-9 < limit:
+                errors.append(InputError(
+                    check.limit_node.loc, where,
+                    f"the check limit is beyond the simulated duration ({why})",
+                    f"a limit within {format_quantity(until, 's', 'min', sig)}",
+                    format_quantity(limit, declared.unit, shown, sig)))
+                return None
+            return CheckResult(check.result, check.relation, None, limit, declared.unit, None,
+                               None, True, source, why,
+                               format_quantity(limit, declared.unit, shown, sig), "—",
+                               note=why)
+        return CheckResult(check.result, check.relation, None, limit, declared.unit, None, None,
+                           False, source, why, format_quantity(limit, declared.unit, shown, sig),
+                           "—", note=why)
+
+    value = out.results[check.result].value
+    margin = limit - value if check.relation == "at_most" else value - limit
+    passed = margin >= 0
+    utilisation = None
+    if declared.temperature != ABSOLUTE and limit > 0 and value is not None:
+        utilisation = value / limit if check.relation == "at_most" else (
+            limit / value if value > 0 else math.inf)
+    value_text = format_quantity(value, declared.unit, shown, sig)
+    limit_text = format_quantity(limit, declared.unit, shown, sig)
+    while value_text == limit_text and value != limit and sig < 12:
+        sig += 1
+        value_text = format_quantity(value, declared.unit, shown, sig)
+        limit_text = format_quantity(limit, declared.unit, shown, sig)
+    margin_unit = "K" if declared.temperature else declared.unit
+    margin_shown = "K" if declared.temperature else shown
+    return CheckResult(check.result, check.relation, value, limit, declared.unit, margin,
+                       utilisation, passed, source, value_text, limit_text,
+                       format_quantity(margin, margin_unit, margin_shown, sig))
+
+

@@ -1,0 +1,765 @@
+"""What a calculation kind declares, and what its ``compute`` receives and writes.
+
+A kind is declared once, as data: its inputs (:class:`Field` objects: name, dimension, default,
+range, source of the default), its results (:class:`ResultSpec`), a ``compute(inp, out)`` function
+and optionally a ``figures(block)`` function. The validator, ``calcdoc kinds``, the report's input
+table and results.json are all driven by that declaration.
+
+``compute`` receives ``inp``, an :class:`Inputs` mapping of coherent SI floats (lists and dicts for
+list and record fields, a material record for a material, an object for a fire), and ``out``, a
+:class:`BlockOutput` on which it records steps, results, series, notes and warnings. It never
+formats a number for people except through ``out.q`` (which uses the project's precision), and it
+never renders.
+
+Example (a complete kind)::
+
+    KIND = Kind(
+        name="surface_emission", title="Emission from a grey surface",
+        summary="Emissive power of a grey diffuse surface (Stefan–Boltzmann law).",
+        inputs=(Quantity("temperature", "K", "surface temperature", temperature=ABSOLUTE,
+                         greater_than=0.0),
+                Quantity("emissivity", "1", "hemispherical emissivity", greater_than=0.0,
+                         at_most=1.0)),
+        results=(ResultSpec("E", "W/m^2", "emissive power"),),
+        compute=compute)
+
+    def compute(inp, out):
+        E = inp.emissivity * SIGMA * inp.temperature ** 4
+        out.step("E", r"\\varepsilon \\sigma T^4",
+                 rf"{out.q(inp.emissivity, '1')} \\cdot \\sigma \\cdot ({out.q(inp.temperature, 'K')})^4",
+                 E, "W/m^2", label="Emissive power", source="Stefan–Boltzmann law")
+        out.result("E", E)
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+from dataclasses import dataclass, field
+from typing import Any, Callable
+
+from calcdoc.errors import InputError, Location
+from calcdoc.located import Node, plain
+from calcdoc.units import (ABSOLUTE, DIFFERENCE, UnitProblem, convert, dimension_text,
+                           format_number, format_quantity, latex_quantity, parse_quantity_text,
+                           pretty_unit)
+
+__all__ = [
+    "REQUIRED", "ABSOLUTE", "DIFFERENCE", "Field", "Quantity", "Choice", "Text", "Items",
+    "Record", "MaterialField", "FreeMapping", "ResultSpec", "Kind", "Inputs", "InputContext",
+    "InputRecord", "BlockOutput", "Step", "Series", "Figure", "ResolvedRef", "did_you_mean",
+]
+
+
+class _Required:
+    def __repr__(self) -> str:
+        return "REQUIRED"
+
+
+REQUIRED: Any = _Required()
+
+
+def did_you_mean(word: str, options) -> str | None:
+    """Return a 'did you mean' hint for a mistyped key, or None."""
+    close = difflib.get_close_matches(word, list(options), n=1, cutoff=0.6)
+    return f"did you mean '{close[0]}'?" if close else None
+
+
+# ----------------------------------------------------------------------------- records
+
+
+@dataclass
+class InputRecord:
+    """One resolved input as the report prints it: path, value as written and in SI, source."""
+
+    path: str
+    meaning: str
+    written: str
+    si: Any
+    si_unit: str
+    display: str
+    source: str = ""
+    origin: str = "given"  # given | default | ref | named | material
+    ref: str | None = None
+    loc: Location | None = None
+
+
+@dataclass
+class ResolvedRef:
+    """What a ``{ref: ...}`` points at: a result's SI value (or a series' object) and its unit."""
+
+    target: str
+    value: Any
+    si_unit: str
+    temperature: str | None
+    display: str
+    obj: Any = None
+
+
+@dataclass
+class Step:
+    """A formula step as a checker writes it by hand: symbol = formula = numbers = result."""
+
+    symbol: str
+    formula: str
+    substituted: str
+    value_si: Any
+    si_unit: str
+    display_unit: str
+    display: str
+    label: str = ""
+    source: str = ""
+
+
+@dataclass
+class Series:
+    """A curve of results, e.g. temperature over time; ``obj`` is handed on to ``ref`` users."""
+
+    name: str
+    x: list
+    y: list
+    x_unit: str = "s"
+    y_unit: str = "K"
+    x_label: str = "time"
+    label: str = ""
+    obj: Any = None
+
+
+@dataclass
+class Figure:
+    """A rendered picture for the report: SVG text and a caption."""
+
+    key: str
+    svg: str
+    caption: str
+
+
+@dataclass
+class InputContext:
+    """What input conversion needs: libraries, reference resolution and the error list."""
+
+    materials: dict
+    named: dict
+    resolve_ref: Callable[[Node, str], ResolvedRef]
+    errors: list = field(default_factory=list)
+    records: list = field(default_factory=list)
+    sheet_id: str = ""
+    block_id: str = ""
+    precision: int = 3
+
+    def error(self, node_or_loc, path: str, what: str, expected=None, got=None, hint=None):
+        loc = node_or_loc.loc if isinstance(node_or_loc, Node) else node_or_loc
+        self.errors.append(InputError(loc, self.where(path), what, expected, got, hint))
+
+    def where(self, path: str) -> str:
+        return f"{self.sheet_id}.{self.block_id}.inputs.{path}" if path else \
+            f"{self.sheet_id}.{self.block_id}"
+
+
+class _Invalid(Exception):
+    """Raised inside conversion after the error was recorded; the value is unusable."""
+
+
+# ----------------------------------------------------------------------------- fields
+
+
+@dataclass(frozen=True)
+class Field:
+    """One declared input. Subclasses convert a YAML node into an SI value."""
+
+    name: str
+    meaning: str = ""
+    default: Any = REQUIRED
+    source: str = ""  # where the default comes from (standard and clause)
+
+    @property
+    def required(self) -> bool:
+        return self.default is REQUIRED
+
+    def type_text(self) -> str:
+        return "value"
+
+    def range_text(self) -> str:
+        return ""
+
+    def default_text(self) -> str:
+        if self.default is REQUIRED:
+            return "required"
+        if self.default is None:
+            return "optional"
+        return str(self.default)
+
+    def describe(self) -> dict:
+        return {"name": self.name, "type": self.type_text(), "default": self.default_text(),
+                "range": self.range_text(), "source": self.source, "meaning": self.meaning}
+
+    def missing(self, ctx: InputContext, parent: Node, path: str):
+        """Return the value for an absent input: its default, or record an error."""
+        if self.default is REQUIRED:
+            ctx.error(parent, path, f"missing input '{self.name}'",
+                      f"{self.type_text()} ({self.meaning})" if self.meaning else self.type_text(),
+                      "nothing")
+            raise _Invalid
+        if self.default is None:
+            return None
+        return self.from_default(ctx, parent, path)
+
+    def from_default(self, ctx: InputContext, parent: Node, path: str):
+        return self.default
+
+    def convert(self, node: Node, ctx: InputContext, path: str):
+        raise NotImplementedError
+
+
+def _is_mapping_with(node: Node, key: str) -> bool:
+    return node.is_map and key in node.value
+
+
+@dataclass(frozen=True)
+class Quantity(Field):
+    """A physical quantity held in ``unit`` (coherent SI), range-checked.
+
+    ``temperature`` is ABSOLUTE or DIFFERENCE for temperatures; ``percent`` requires '%'.
+    Accepts a quantity text, a bare number (dimensionless only), ``{value, source}``,
+    ``{ref: ...}`` and ``{named: ...}``.
+    """
+
+    unit: str = "1"
+    temperature: str | None = None
+    percent: bool = False
+    greater_than: float | None = None
+    at_least: float | None = None
+    less_than: float | None = None
+    at_most: float | None = None
+    display: str | None = None  # unit to show it in (default: the unit as written)
+
+    def type_text(self) -> str:
+        if self.temperature == ABSOLUTE:
+            return "absolute temperature [K, degC, degF]"
+        if self.temperature == DIFFERENCE:
+            return "temperature difference [K, delta_degC, delta_degF]"
+        if self.percent:
+            return "fraction [%]"
+        return dimension_text(self.unit)
+
+    def range_text(self) -> str:
+        parts = []
+        shown = self.display or self.unit
+        def fmt(v):
+            return format_quantity(v, self.unit, shown if not self.percent else "%", 6)
+        if self.greater_than is not None:
+            parts.append(f"> {fmt(self.greater_than)}")
+        if self.at_least is not None:
+            parts.append(f">= {fmt(self.at_least)}")
+        if self.less_than is not None:
+            parts.append(f"< {fmt(self.less_than)}")
+        if self.at_most is not None:
+            parts.append(f"<= {fmt(self.at_most)}")
+        return ", ".join(parts)
+
+    def _display_unit(self, written_unit: str) -> str:
+        if self.display:
+            return self.display
+        if written_unit:
+            return written_unit
+        return self.unit
+
+    def _check_range(self, value: float, ctx, node, path, written):
+        bad = None
+        if isinstance(value, float) and math.isnan(value):
+            bad = "a number"
+        elif self.greater_than is not None and not value > self.greater_than:
+            bad = f"> {format_quantity(self.greater_than, self.unit, self.display, 6)}"
+        elif self.at_least is not None and not value >= self.at_least:
+            bad = f">= {format_quantity(self.at_least, self.unit, self.display, 6)}"
+        elif self.less_than is not None and not value < self.less_than:
+            bad = f"< {format_quantity(self.less_than, self.unit, self.display, 6)}"
+        elif self.at_most is not None and not value <= self.at_most:
+            bad = f"<= {format_quantity(self.at_most, self.unit, self.display, 6)}"
+        if bad:
+            ctx.error(node, path, f"'{self.name}' out of range", f"{self.name} {bad}", written)
+            raise _Invalid
+
+    def parse_text(self, text, ctx: InputContext, node: Node, path: str) -> tuple[float, str]:
+        if isinstance(text, bool) or not isinstance(text, (str, int, float)):
+            ctx.error(node, path, f"'{self.name}' is not a quantity",
+                      f"{self.type_text()}, e.g. '{self.example()}'", repr(text))
+            raise _Invalid
+        if isinstance(text, (int, float)) and self.unit != "1":
+            ctx.error(node, path, "a number without a unit",
+                      f"{self.type_text()}, e.g. '{self.example()}'", repr(text))
+            raise _Invalid
+        try:
+            return parse_quantity_text(str(text), self.unit, self.temperature, self.percent)
+        except UnitProblem as problem:
+            ctx.error(node, path, problem.what, problem.expected, problem.got, problem.hint)
+            raise _Invalid from None
+
+    def example(self) -> str:
+        if self.temperature == ABSOLUTE:
+            return "20 degC"
+        if self.temperature == DIFFERENCE:
+            return "140 K"
+        if self.percent:
+            return "1.5 %"
+        return f"1 {self.unit}" if self.unit != "1" else "0.9"
+
+    def from_default(self, ctx, parent, path):
+        value, written_unit = parse_quantity_text(str(self.default), self.unit, self.temperature,
+                                                  self.percent)
+        self._record(ctx, path, str(self.default), value, written_unit, self.source, "default",
+                     loc=parent.loc)
+        return value
+
+    def _record(self, ctx, path, written, value, written_unit, source, origin, ref=None, loc=None):
+        shown = self._display_unit(written_unit)
+        ctx.records.append(InputRecord(
+            path=path, meaning=self.meaning, written=written, si=value, si_unit=self.unit,
+            display=format_quantity(value, self.unit, shown, ctx.precision), source=source,
+            origin=origin, ref=ref, loc=loc))
+
+    def convert(self, node: Node, ctx: InputContext, path: str):
+        source = ""
+        origin = "given"
+        if _is_mapping_with(node, "ref"):
+            return self._from_ref(node, ctx, path)
+        if _is_mapping_with(node, "named"):
+            return self._from_named(node, ctx, path)
+        value_node = node
+        if node.is_map:
+            unknown = set(node.value) - {"value", "source"}
+            for key in sorted(unknown):
+                ctx.error(node.key_locs[key], path, f"unknown key '{key}'",
+                          "value, source, ref or named", repr(key),
+                          did_you_mean(key, ["value", "source", "ref", "named"]))
+            if "value" not in node.value:
+                ctx.error(node, path, f"'{self.name}' has no value",
+                          "{value: QUANTITY, source: TEXT}", repr(plain(node)))
+                raise _Invalid
+            value_node = node.value["value"]
+            source = str(plain(node.value.get("source")) or "")
+        if not value_node.is_scalar:
+            ctx.error(value_node, path, f"'{self.name}' is not a quantity",
+                      f"{self.type_text()}, e.g. '{self.example()}'", repr(plain(value_node)))
+            raise _Invalid
+        value, written_unit = self.parse_text(value_node.value, ctx, value_node, path)
+        self._check_range(value, ctx, value_node, path, repr(value_node.value))
+        self._record(ctx, path, str(value_node.value), value, written_unit, source, origin,
+                     loc=value_node.loc)
+        return value
+
+    def _from_ref(self, node, ctx, path):
+        target = ctx.resolve_ref(node.value["ref"], path)  # raises InputError when unknown
+        if target.obj is not None:
+            ctx.error(node, path, f"'{self.name}' refers to a series",
+                      f"a single result of {self.type_text()}", target.target)
+            raise _Invalid
+        if isinstance(target.value, list):
+            ctx.error(node, path, f"'{self.name}' refers to a list result",
+                      f"a single result of {self.type_text()}", target.target)
+            raise _Invalid
+        if dimension_text(target.si_unit) != dimension_text(self.unit) or (
+                self.temperature and target.temperature and self.temperature != target.temperature):
+            got = dimension_text(target.si_unit)
+            if target.temperature:
+                got = f"{target.temperature} temperature"
+            ctx.error(node, path, "reference of the wrong dimension", self.type_text(),
+                      f"{got} from {target.target}")
+            raise _Invalid
+        value = convert(target.value, target.si_unit, self.unit)
+        self._check_range(value, ctx, node, path, target.display)
+        ctx.records.append(InputRecord(
+            path=path, meaning=self.meaning, written=f"ref {target.target}", si=value,
+            si_unit=self.unit, display=target.display, source=f"result {target.target}",
+            origin="ref", ref=target.target, loc=node.loc))
+        return value
+
+    def _from_named(self, node, ctx, path):
+        name_node = node.value["named"]
+        name = str(name_node.value)
+        entry = ctx.named.get(name)
+        if entry is None:
+            ctx.error(name_node, path, f"unknown named value '{name}'",
+                      "a name from `calcdoc kinds` (named values)", repr(name),
+                      did_you_mean(name, ctx.named))
+            raise _Invalid
+        try:
+            value, written_unit = parse_quantity_text(entry["value"], self.unit, self.temperature,
+                                                      self.percent)
+        except UnitProblem as problem:
+            ctx.error(name_node, path, f"named value '{name}' has the wrong dimension",
+                      problem.expected, problem.got)
+            raise _Invalid from None
+        self._check_range(value, ctx, node, path, entry["value"])
+        ctx.records.append(InputRecord(
+            path=path, meaning=self.meaning, written=f"named {name}", si=value, si_unit=self.unit,
+            display=format_quantity(value, self.unit, self._display_unit(written_unit),
+                                    ctx.precision),
+            source=entry.get("source", ""), origin="named", loc=node.loc))
+        return value
+
+
+@dataclass(frozen=True)
+class Choice(Field):
+    """One word from a fixed list."""
+
+    options: tuple[str, ...] = ()
+
+    def type_text(self) -> str:
+        return "one of " + " | ".join(self.options)
+
+    def from_default(self, ctx, parent, path):
+        ctx.records.append(InputRecord(path, self.meaning, str(self.default), self.default, "",
+                                       str(self.default), self.source, "default", loc=parent.loc))
+        return self.default
+
+    def convert(self, node, ctx, path):
+        value = node.value if node.is_scalar else None
+        if not isinstance(value, str) or value not in self.options:
+            ctx.error(node, path, f"'{self.name}' is not one of the choices",
+                      " | ".join(self.options), repr(plain(node)),
+                      did_you_mean(str(value), self.options) if isinstance(value, str) else None)
+            raise _Invalid
+        ctx.records.append(InputRecord(path, self.meaning, value, value, "", value, "", "given",
+                                       loc=node.loc))
+        return value
+
+
+@dataclass(frozen=True)
+class Text(Field):
+    """Free text (a name or a source); not recorded as an input row."""
+
+    def type_text(self) -> str:
+        return "text"
+
+    def convert(self, node, ctx, path):
+        if not node.is_scalar or node.value is None:
+            ctx.error(node, path, f"'{self.name}' is not text", "text", repr(plain(node)))
+            raise _Invalid
+        return str(node.value)
+
+
+@dataclass(frozen=True)
+class Record(Field):
+    """A mapping with its own declared fields; ``exactly_one`` lists groups of exclusive keys."""
+
+    fields: tuple[Field, ...] = ()
+    exactly_one: tuple[tuple[str, ...], ...] = ()
+    at_most_one: tuple[tuple[str, ...], ...] = ()
+
+    def type_text(self) -> str:
+        return "mapping of " + ", ".join(f.name for f in self.fields)
+
+    def describe(self) -> dict:
+        d = super().describe()
+        d["fields"] = [f.describe() for f in self.fields]
+        return d
+
+    def convert(self, node, ctx, path):
+        if not node.is_map:
+            ctx.error(node, path, f"'{self.name}' is not a mapping",
+                      "a mapping of " + ", ".join(f.name for f in self.fields), repr(plain(node)))
+            raise _Invalid
+        return convert_fields(self.fields, node, ctx, path, self.exactly_one, self.at_most_one)
+
+
+@dataclass(frozen=True)
+class Items(Field):
+    """A list of records, each with the declared ``fields``."""
+
+    fields: tuple[Field, ...] = ()
+    exactly_one: tuple[tuple[str, ...], ...] = ()
+    at_most_one: tuple[tuple[str, ...], ...] = ()
+    min_items: int = 0
+
+    def type_text(self) -> str:
+        return "list of {" + ", ".join(f.name for f in self.fields) + "}"
+
+    def describe(self) -> dict:
+        d = super().describe()
+        d["fields"] = [f.describe() for f in self.fields]
+        return d
+
+    def from_default(self, ctx, parent, path):
+        return list(self.default)
+
+    def convert(self, node, ctx, path):
+        if not node.is_list:
+            ctx.error(node, path, f"'{self.name}' is not a list", self.type_text(),
+                      repr(plain(node)))
+            raise _Invalid
+        if len(node.value) < self.min_items:
+            ctx.error(node, path, f"'{self.name}' has too few items",
+                      f"at least {self.min_items}", str(len(node.value)))
+            raise _Invalid
+        out, failed = [], False
+        for i, item in enumerate(node.value):
+            item_path = f"{path}[{i}]"
+            if not item.is_map:
+                ctx.error(item, item_path, "not a mapping", self.type_text(), repr(plain(item)))
+                failed = True
+                continue
+            try:
+                out.append(convert_fields(self.fields, item, ctx, item_path, self.exactly_one,
+                                          self.at_most_one))
+            except _Invalid:
+                failed = True
+        if failed:
+            raise _Invalid
+        return out
+
+
+@dataclass(frozen=True)
+class MaterialField(Field):
+    """A material from the library: ``brick_clay`` or ``{material: brick_clay}``.
+
+    The value is the library record (a dict with at least ``name``, ``title``, ``source`` and the
+    properties it has, each already in SI: ``conductivity`` W/(m·K), ``density`` kg/m³,
+    ``specific_heat`` J/(kg·K), ``emissivity``, and ``law`` for temperature-dependent materials).
+    """
+
+    def type_text(self) -> str:
+        return "material name from the library"
+
+    def convert(self, node, ctx, path):
+        name_node = node.value["material"] if _is_mapping_with(node, "material") else node
+        name = name_node.value if name_node.is_scalar else None
+        if not isinstance(name, str) or name not in ctx.materials:
+            ctx.error(name_node, path, f"unknown material '{name}'",
+                      "a material in the library or materials.yaml", repr(plain(name_node)),
+                      did_you_mean(str(name), ctx.materials) if isinstance(name, str) else None)
+            raise _Invalid
+        entry = ctx.materials[name]
+        ctx.records.append(InputRecord(path, self.meaning or "material", name, name, "",
+                                       entry.get("title", name), entry.get("source", ""),
+                                       "material", loc=name_node.loc))
+        return entry
+
+
+@dataclass(frozen=True)
+class FreeMapping(Field):
+    """Names chosen by the user mapped to quantities of any dimension (the formula kind's
+    ``given``). Each value converts to ``(value_si, si_unit, temperature)``; ``convert_value``
+    is supplied by the kind."""
+
+    convert_value: Callable | None = None
+
+    def type_text(self) -> str:
+        return "mapping of NAME: quantity"
+
+    def convert(self, node, ctx, path):
+        if not node.is_map:
+            ctx.error(node, path, f"'{self.name}' is not a mapping", self.type_text(),
+                      repr(plain(node)))
+            raise _Invalid
+        out, failed = {}, False
+        for key, value in node.value.items():
+            try:
+                out[key] = self.convert_value(key, value, ctx, f"{path}.{key}",
+                                              node.key_locs[key])
+            except _Invalid:
+                failed = True
+        if failed:
+            raise _Invalid
+        return out
+
+
+def convert_fields(fields, node: Node, ctx: InputContext, path: str,
+                   exactly_one=(), at_most_one=()) -> "Inputs":
+    """Convert a mapping node against declared fields; record every error, then raise _Invalid."""
+    names = [f.name for f in fields]
+    failed = False
+    for key in node.value:
+        if key not in names:
+            ctx.error(node.key_locs[key], _join(path, key), f"unknown key '{key}'",
+                      "one of " + ", ".join(names), repr(key), did_you_mean(key, names))
+            failed = True
+    for group in exactly_one:
+        present = [k for k in group if k in node.value]
+        if len(present) != 1:
+            ctx.error(node, path, "exactly one of " + " | ".join(group) + " is needed",
+                      "exactly one", ", ".join(present) if present else "none")
+            failed = True
+    for group in at_most_one:
+        present = [k for k in group if k in node.value]
+        if len(present) > 1:
+            ctx.error(node, path, "at most one of " + " | ".join(group),
+                      "at most one", ", ".join(present))
+            failed = True
+    out = Inputs()
+    exclusive = {k for g in exactly_one + at_most_one for k in g}
+    for f in fields:
+        sub = node.value.get(f.name)
+        try:
+            if sub is None or sub.value is None and not isinstance(f, Text):
+                if f.name in exclusive and f.default is REQUIRED:
+                    out[f.name] = None
+                else:
+                    out[f.name] = f.missing(ctx, node, _join(path, f.name))
+            else:
+                out[f.name] = f.convert(sub, ctx, _join(path, f.name))
+        except _Invalid:
+            failed = True
+        except InputError as err:
+            ctx.errors.append(err)
+            failed = True
+    if failed:
+        raise _Invalid
+    return out
+
+
+def _join(path: str, key: str) -> str:
+    return f"{path}.{key}" if path else key
+
+
+class Inputs(dict):
+    """Converted inputs: a dict that also allows ``inp.thickness``."""
+
+    def __getattr__(self, name):
+        try:
+            return self[name]
+        except KeyError:
+            raise AttributeError(name) from None
+
+
+# ----------------------------------------------------------------------------- results
+
+
+@dataclass(frozen=True)
+class ResultSpec:
+    """One declared result: name, coherent SI unit, meaning; ``list`` for list results."""
+
+    name: str
+    unit: str
+    meaning: str = ""
+    temperature: str | None = None
+    display: str | None = None
+    list: bool = False
+
+    def display_unit(self) -> str:
+        if self.display:
+            return self.display
+        if self.temperature == ABSOLUTE:
+            return "degC"
+        return self.unit
+
+
+@dataclass
+class ResultValue:
+    spec: ResultSpec
+    value: Any
+    display: str
+
+
+class BlockOutput:
+    """What ``compute`` writes: steps, results, series, notes, warnings and figure data."""
+
+    def __init__(self, kind: "Kind", precision: int = 3, display: dict | None = None):
+        self.kind = kind
+        self.precision = precision
+        self.display_overrides = display or {}
+        self.results: dict[str, ResultValue] = {}
+        self.steps: list[Step] = []
+        self.warnings: list[dict] = []
+        self.notes: list[dict] = []
+        self.series: dict[str, Series] = {}
+        self.absent: dict[str, str] = {}  # result name → why it does not exist
+        self.simulated_until: float | None = None
+        self.figure_data: dict[str, Any] = {}
+        self._specs = {r.name: r for r in kind.results}
+
+    def spec(self, name: str) -> ResultSpec:
+        return self._specs[name]
+
+    def q(self, value_si: float, si_unit: str, display_unit: str | None = None) -> str:
+        """Return the value as LaTeX in the display unit (absolute K shown as °C by default)."""
+        return latex_quantity(value_si, si_unit, display_unit, self.precision)
+
+    def qt(self, value_si: float, si_unit: str, display_unit: str | None = None) -> str:
+        """Return the value as plain text for notes, e.g. '0.273 W/(m²·K)'."""
+        return format_quantity(value_si, si_unit, display_unit, self.precision)
+
+    def result(self, name: str, value, unit: str | None = None, meaning: str = "",
+               temperature: str | None = None, display: str | None = None):
+        """Record a result. Kinds with open results (formula) pass ``unit`` for new names."""
+        spec = self._specs.get(name)
+        if spec is None:
+            if unit is None:
+                raise KeyError(f"result '{name}' is not declared by kind {self.kind.name}")
+            spec = ResultSpec(name, unit, meaning, temperature, display)
+            self._specs[name] = spec
+        shown = self.display_overrides.get(name) or spec.display_unit()
+        if isinstance(value, (list, tuple)):
+            value = [float(v) for v in value]
+            text = ", ".join(format_quantity(v, spec.unit, shown, self.precision) for v in value)
+        else:
+            value = float(value)
+            text = format_quantity(value, spec.unit, shown, self.precision)
+        self.results[name] = ResultValue(spec, value, text)
+
+    def not_reached(self, name: str, why: str):
+        """Record that a result does not exist (e.g. a time not reached) and why, in words."""
+        self.absent[name] = why
+
+    def step(self, symbol: str, formula: str, substituted: str, value, unit: str,
+             label: str = "", source: str = "", display_unit: str | None = None):
+        """Record a step: LaTeX symbol, formula in symbols, formula with numbers, result.
+
+        ``value`` is in the SI ``unit``; pass ``display_unit="degC"`` for an absolute temperature
+        in K (a difference stays in K: never show a difference with an offset unit)."""
+        shown = display_unit or unit
+        if isinstance(value, (list, tuple)):
+            text = ", ".join(format_quantity(v, unit, shown, self.precision) for v in value)
+        else:
+            text = format_quantity(float(value), unit, shown, self.precision)
+        self.steps.append(Step(symbol, formula, substituted, value, unit, shown, text, label,
+                               source))
+
+    def warn(self, message: str, source: str = ""):
+        self.warnings.append({"message": message, "source": source})
+
+    def note(self, text: str, source: str = ""):
+        """Record an assumption or a statement of method, printed with its source."""
+        self.notes.append({"text": text, "source": source})
+
+    def add_series(self, name: str, x, y, x_unit: str = "s", y_unit: str = "K",
+                   x_label: str = "time", label: str = "", obj=None):
+        self.series[name] = Series(name, [float(v) for v in x], [float(v) for v in y], x_unit,
+                                   y_unit, x_label, label, obj)
+
+
+# ----------------------------------------------------------------------------- kind
+
+
+@dataclass(frozen=True)
+class Kind:
+    """A calculation kind: declared inputs and results, compute, and optional figures."""
+
+    name: str
+    title: str
+    summary: str
+    inputs: tuple[Field, ...]
+    results: tuple[ResultSpec, ...]
+    compute: Callable[[Inputs, BlockOutput], None]
+    figures: Callable[[Any], list[Figure]] | None = None
+    exactly_one: tuple[tuple[str, ...], ...] = ()
+    at_most_one: tuple[tuple[str, ...], ...] = ()
+    caution: str = ""
+    open_results: bool = False  # results named by the user (formula)
+    inputs_at_block_level: bool = False  # inputs written beside id/kind, not under `inputs:`
+    references: tuple[str, ...] = ()
+
+    def result_spec(self, name: str) -> ResultSpec | None:
+        for r in self.results:
+            if r.name == name:
+                return r
+        return None
+
+    def describe(self) -> dict:
+        return {"name": self.name, "title": self.title, "summary": self.summary,
+                "inputs": [f.describe() for f in self.inputs],
+                "exactly_one": [list(g) for g in self.exactly_one],
+                "results": [{"name": r.name, "unit": pretty_unit(r.unit), "meaning": r.meaning,
+                             "temperature": r.temperature or ""} for r in self.results],
+                "caution": self.caution}
+

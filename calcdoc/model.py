@@ -1,0 +1,170 @@
+"""Plain dataclasses for the project as written (specs) and as evaluated (results)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from calcdoc.errors import Location
+from calcdoc.located import Node
+
+__all__ = ["Revision", "Signature", "CheckSpec", "BlockSpec", "SheetSpec", "ReviewComment",
+           "Project", "CheckResult", "EvaluatedBlock", "EvaluatedSheet", "Package"]
+
+
+@dataclass
+class Revision:
+    rev: str
+    date: str
+    purpose: str
+    by: str = ""
+    checked: str = ""
+    approved: str = ""
+
+
+@dataclass
+class Signature:
+    role: str  # prepared | checked | approved
+    by: str
+    date: str
+    rev: str
+
+
+@dataclass
+class CheckSpec:
+    result: str
+    relation: str  # at_most | at_least
+    limit_node: Node
+    source: str
+    loc: Location
+
+
+@dataclass
+class BlockSpec:
+    id: str
+    kind: str
+    title: str
+    inputs: Node | None
+    checks: list[CheckSpec]
+    display: dict[str, str]
+    notes: str
+    loc: Location
+    sheet_id: str = ""
+
+    @property
+    def key(self) -> str:
+        return f"{self.sheet_id}.{self.id}"
+
+
+@dataclass
+class SheetSpec:
+    id: str
+    title: str
+    path: Path
+    relpath: str
+    signoff: dict[str, Signature]
+    notes: str
+    blocks: list[BlockSpec]
+    loc: Location
+
+
+@dataclass
+class ReviewComment:
+    on: str
+    by: str
+    date: str
+    text: str
+    status: str  # open | answered | closed
+    response: str
+    loc: Location
+
+
+@dataclass
+class Project:
+    root: Path
+    number: str
+    title: str
+    client: str
+    site: str
+    organisation: str
+    package_number: str
+    package_title: str
+    revisions: list[Revision]
+    units: str
+    precision: int
+    sheets: list[SheetSpec]
+    materials: dict[str, dict]
+    named: dict[str, dict]
+    reviewer: str = ""
+    comments: list[ReviewComment] = field(default_factory=list)
+    input_files: list[Path] = field(default_factory=list)
+
+    @property
+    def revision(self) -> Revision:
+        return self.revisions[-1]
+
+
+@dataclass
+class CheckResult:
+    result: str
+    relation: str
+    value_si: float | None
+    limit_si: float
+    si_unit: str
+    margin_si: float | None
+    utilisation: float | None
+    passed: bool
+    source: str
+    value_display: str
+    limit_display: str
+    margin_display: str
+    note: str = ""
+
+
+@dataclass
+class EvaluatedBlock:
+    spec: BlockSpec
+    kind: Any  # calcdoc.kinds.base.Kind
+    inputs: list  # InputRecord
+    output: Any  # calcdoc.kinds.base.BlockOutput
+    checks: list[CheckResult]
+
+    @property
+    def id(self) -> str:
+        return self.spec.id
+
+    @property
+    def key(self) -> str:
+        return self.spec.key
+
+    @property
+    def passed(self) -> bool:
+        return all(c.passed for c in self.checks)
+
+
+@dataclass
+class EvaluatedSheet:
+    spec: SheetSpec
+    blocks: list[EvaluatedBlock]
+
+    @property
+    def id(self) -> str:
+        return self.spec.id
+
+    @property
+    def checks(self) -> list[CheckResult]:
+        return [c for b in self.blocks for c in b.checks]
+
+
+@dataclass
+class Package:
+    project: Project
+    sheets: list[EvaluatedSheet]
+
+    def block(self, key: str) -> EvaluatedBlock | None:
+        for sheet in self.sheets:
+            for block in sheet.blocks:
+                if block.key == key:
+                    return block
+        return None

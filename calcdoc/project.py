@@ -1,0 +1,383 @@
+"""Load project.yaml, the sheets, materials and review comments into the model, with locations.
+
+Every problem found is collected and raised at the end as one :class:`InputErrors`, so a user sees
+all of them in one run. Unknown keys are errors (a typo would otherwise silently take a default).
+"""
+
+from __future__ import annotations
+
+import datetime
+import re
+from pathlib import Path
+
+from calcdoc.errors import InputError, InputErrors, Location
+from calcdoc.kinds import registry
+from calcdoc.kinds.base import did_you_mean
+from calcdoc.located import Node, load_yaml, plain
+from calcdoc.model import (BlockSpec, CheckSpec, Project, ReviewComment, Revision, SheetSpec,
+                           Signature)
+from calcdoc.units import UnitProblem, parse_quantity_text
+
+__all__ = ["load_project", "load_materials", "load_named_values", "LIBRARY_DIR"]
+
+LIBRARY_DIR = Path(__file__).parent / "materials"
+
+_ID = re.compile(r"^[a-z0-9_-]+$")
+_SHEET_ID = re.compile(r"^[A-Za-z0-9_-]+$")
+_MATERIAL_PROPERTIES = {"conductivity": "W/(m*K)", "density": "kg/m^3",
+                        "specific_heat": "J/(kg*K)", "emissivity": "1",
+                        "resistance": "m^2*K/W"}
+_MATERIAL_TEXT = {"title", "source", "law", "notes", "category"}
+
+
+class _Collector:
+    def __init__(self):
+        self.errors: list[InputError] = []
+
+    def error(self, loc, where, what, expected=None, got=None, hint=None):
+        self.errors.append(InputError(loc, where, what, expected, got, hint))
+
+    def keys(self, node: Node, allowed, where: str, required=()):
+        """Check a mapping's keys: unknown keys and missing required keys are errors."""
+        if not node.is_map:
+            self.error(node.loc, where, "not a mapping", "a mapping of " + ", ".join(allowed),
+                       repr(plain(node)))
+            return False
+        for key in node.value:
+            if key not in allowed:
+                self.error(node.key_locs[key], f"{where}.{key}" if where else key,
+                           f"unknown key '{key}'", "one of " + ", ".join(allowed), repr(key),
+                           did_you_mean(key, allowed))
+        for key in required:
+            if key not in node.value or node.value[key].value in (None, ""):
+                self.error(node.loc, where, f"missing key '{key}'", f"'{key}'", "nothing")
+        return True
+
+
+def _text(node: Node | None, default: str = "") -> str:
+    if node is None or node.value is None:
+        return default
+    value = node.value
+    if isinstance(value, (datetime.date, datetime.datetime)):
+        return value.isoformat()[:10]
+    return str(value)
+
+
+def _read(path: Path, root: Path, col: _Collector) -> Node | None:
+    rel = _relative(path, root)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        col.error(Location(rel), "", "file not found", "an existing file", str(path))
+        return None
+    except UnicodeDecodeError as exc:
+        col.error(Location(rel), "", "not UTF-8 text", "UTF-8", str(exc.reason))
+        return None
+    try:
+        return load_yaml(text, rel)
+    except InputError as err:
+        col.errors.append(err)
+    except InputErrors as errs:
+        col.errors.extend(errs.errors)
+    return None
+
+
+def _relative(path: Path, root: Path) -> str:
+    try:
+        return str(path.resolve().relative_to(root.resolve().parent))
+    except ValueError:
+        return str(path)
+
+
+# ----------------------------------------------------------------------------- libraries
+
+
+def load_materials(paths: list[Path], root: Path, col: _Collector) -> dict:
+    """Return materials by name, each property converted to SI; later files override earlier."""
+    materials: dict[str, dict] = {}
+    for path in paths:
+        tree = _read(path, root, col)
+        if tree is None:
+            continue
+        if not tree.is_map:
+            col.error(tree.loc, "", "not a mapping of materials", "NAME: {...}", repr(plain(tree)))
+            continue
+        for name, entry in tree.value.items():
+            where = f"materials.{name}"
+            if not entry.is_map:
+                col.error(entry.loc, where, "not a mapping", "{title, conductivity, source, ...}",
+                          repr(plain(entry)))
+                continue
+            record: dict = {"name": name, "title": name, "source": ""}
+            for key, value in entry.value.items():
+                if key in _MATERIAL_PROPERTIES:
+                    try:
+                        record[key] = parse_quantity_text(str(value.value),
+                                                          _MATERIAL_PROPERTIES[key])[0]
+                    except UnitProblem as p:
+                        col.error(value.loc, f"{where}.{key}", p.what, p.expected, p.got, p.hint)
+                elif key in _MATERIAL_TEXT:
+                    record[key] = _text(value)
+                else:
+                    record[key] = plain(value)  # law parameters, read by the law
+            if not record["source"]:
+                col.error(entry.loc, where, "material without a source",
+                          "a source text (standard, handbook or product data)", "none")
+            record["file"] = _relative(path, root)
+            materials[name] = record
+    return materials
+
+
+def load_named_values(root: Path | None = None) -> dict:
+    """Return calcdoc's library of named trade values: name → {value, title, source}."""
+    col = _Collector()
+    tree = _read(LIBRARY_DIR / "named.yaml", LIBRARY_DIR, col)
+    if col.errors:
+        raise InputErrors(col.errors)
+    return {name: {k: _text(v) for k, v in entry.value.items()} for name, entry in
+            (tree.value.items() if tree else [])}
+
+
+def builtin_material_files() -> list[Path]:
+    return sorted(p for p in LIBRARY_DIR.glob("*.yaml") if p.name != "named.yaml")
+
+
+# ----------------------------------------------------------------------------- project
+
+
+_PROJECT_KEYS = ("project", "package", "revisions", "units", "precision")
+_PROJECT_BLOCK = ("number", "title", "client", "site", "organisation")
+_PACKAGE_KEYS = ("number", "title", "sheets")
+_REVISION_KEYS = ("rev", "date", "purpose", "by", "checked", "approved")
+_SHEET_KEYS = ("id", "title", "signoff", "notes", "blocks")
+_BLOCK_KEYS = ("id", "kind", "title", "inputs", "checks", "display", "notes")
+_CHECK_KEYS = ("result", "at_most", "at_least", "source")
+_SIGN_ROLES = ("prepared", "checked", "approved")
+_SIGN_KEYS = ("by", "date", "rev")
+
+
+def load_project(folder: str | Path) -> Project:
+    """Return the Project in ``folder``; raise InputErrors listing every problem found."""
+    root = Path(folder)
+    col = _Collector()
+    project_file = root / "project.yaml"
+    if not project_file.is_file():
+        raise InputErrors([InputError(Location(str(project_file)), "", "no project.yaml here",
+                                      "a project folder with project.yaml", str(root))])
+    tree = _read(project_file, root, col)
+    if tree is None:
+        raise InputErrors(col.errors)
+    col.keys(tree, _PROJECT_KEYS, "", required=("project", "package", "revisions"))
+    get = tree.value.get if tree.is_map else (lambda k: None)
+
+    pnode = get("project") or Node({}, tree.loc)
+    if col.keys(pnode, _PROJECT_BLOCK, "project", required=("number", "title")):
+        pass
+    pv = pnode.value if pnode.is_map else {}
+    knode = get("package") or Node({}, tree.loc)
+    col.keys(knode, _PACKAGE_KEYS, "package", required=("number", "title"))
+    kv = knode.value if knode.is_map else {}
+
+    revisions = _revisions(get("revisions"), col, tree.loc)
+    units = _text(get("units"), "SI")
+    if units not in ("SI", "US"):
+        col.error(get("units").loc, "units", "unknown unit system", "SI | US", repr(units))
+    precision = get("precision").value if get("precision") else 3
+    if isinstance(precision, bool) or not isinstance(precision, int) or not 2 <= precision <= 8:
+        col.error(get("precision").loc, "precision", "precision out of range",
+                  "a whole number of significant figures from 2 to 8", repr(precision))
+        precision = 3
+
+    sheet_paths = _sheet_paths(root, kv.get("sheets"), col)
+    material_files = builtin_material_files()
+    if (root / "materials.yaml").is_file():
+        material_files.append(root / "materials.yaml")
+    materials = load_materials(material_files, root, col)
+    named = load_named_values()
+
+    known_kinds = registry()
+    sheets: list[SheetSpec] = []
+    seen_ids: dict[str, Location] = {}
+    for path in sheet_paths:
+        sheet = _sheet(path, root, col, known_kinds)
+        if sheet is None:
+            continue
+        if sheet.id in seen_ids:
+            col.error(sheet.loc, f"{sheet.id}", "sheet id used twice",
+                      "a unique sheet id", f"{sheet.id} (also at {seen_ids[sheet.id]})")
+        seen_ids[sheet.id] = sheet.loc
+        sheets.append(sheet)
+
+    reviewer, comments = "", []
+    input_files = [project_file] + sheet_paths
+    if (root / "materials.yaml").is_file():
+        input_files.append(root / "materials.yaml")
+    if (root / "review.yaml").is_file():
+        input_files.append(root / "review.yaml")
+        reviewer, comments = _review(root / "review.yaml", root, col)
+
+    if col.errors:
+        raise InputErrors(col.errors)
+    return Project(root=root, number=_text(pv.get("number")), title=_text(pv.get("title")),
+                   client=_text(pv.get("client")), site=_text(pv.get("site")),
+                   organisation=_text(pv.get("organisation")),
+                   package_number=_text(kv.get("number")), package_title=_text(kv.get("title")),
+                   revisions=revisions, units=units, precision=precision, sheets=sheets,
+                   materials=materials, named=named, reviewer=reviewer, comments=comments,
+                   input_files=input_files)
+
+
+def _revisions(node: Node | None, col: _Collector, loc: Location) -> list[Revision]:
+    if node is None:
+        return [Revision("-", "", "")]
+    if not node.is_list or not node.value:
+        col.error(node.loc, "revisions", "revisions must be a list, oldest first",
+                  "a list of {rev, date, purpose, by, checked, approved}", repr(plain(node)))
+        return [Revision("-", "", "")]
+    out = []
+    for i, item in enumerate(node.value):
+        where = f"revisions[{i}]"
+        if not col.keys(item, _REVISION_KEYS, where, required=("rev", "date", "purpose")):
+            continue
+        v = item.value
+        out.append(Revision(*(_text(v.get(k)) for k in _REVISION_KEYS)))
+    return out or [Revision("-", "", "")]
+
+
+def _sheet_paths(root: Path, node: Node | None, col: _Collector) -> list[Path]:
+    if node is None:
+        return sorted((root / "sheets").glob("*.yaml"))
+    if not node.is_list:
+        col.error(node.loc, "package.sheets", "not a list", "a list of sheet files",
+                  repr(plain(node)))
+        return []
+    paths = []
+    for item in node.value:
+        path = root / str(item.value)
+        if not path.is_file():
+            col.error(item.loc, "package.sheets", "sheet file not found",
+                      "a file inside the project folder", str(item.value))
+            continue
+        paths.append(path)
+    return paths
+
+
+def _sheet(path: Path, root: Path, col: _Collector, kinds) -> SheetSpec | None:
+    tree = _read(path, root, col)
+    if tree is None:
+        return None
+    if not col.keys(tree, _SHEET_KEYS, path.stem, required=("title", "blocks")):
+        return None
+    v = tree.value
+    sheet_id = _text(v.get("id"), path.stem)
+    if not _SHEET_ID.match(sheet_id):
+        col.error(v["id"].loc, "id", "sheet id has characters outside [A-Za-z0-9_-]",
+                  "[A-Za-z0-9_-]+", repr(sheet_id))
+    signoff = {}
+    snode = v.get("signoff")
+    if snode is not None and col.keys(snode, _SIGN_ROLES, f"{sheet_id}.signoff"):
+        for role, sig in snode.value.items():
+            if role in _SIGN_ROLES and col.keys(sig, _SIGN_KEYS, f"{sheet_id}.signoff.{role}",
+                                                required=("by", "date", "rev")):
+                signoff[role] = Signature(role, *(_text(sig.value.get(k)) for k in _SIGN_KEYS))
+    blocks = []
+    bnode = v.get("blocks")
+    seen: dict[str, Location] = {}
+    if bnode is not None and not bnode.is_list:
+        col.error(bnode.loc, f"{sheet_id}.blocks", "not a list", "a list of blocks",
+                  repr(plain(bnode)))
+    elif bnode is not None:
+        for i, item in enumerate(bnode.value):
+            block = _block(item, sheet_id, i, col, kinds)
+            if block is None:
+                continue
+            if block.id in seen:
+                col.error(block.loc, f"{sheet_id}.{block.id}", "block id used twice in the sheet",
+                          "a unique block id", f"{block.id} (also at {seen[block.id]})")
+            seen[block.id] = block.loc
+            blocks.append(block)
+    return SheetSpec(id=sheet_id, title=_text(v.get("title")), path=path,
+                     relpath=_relative(path, root), signoff=signoff,
+                     notes=_text(v.get("notes")), blocks=blocks, loc=tree.loc)
+
+
+def _block(node: Node, sheet_id: str, index: int, col: _Collector, kinds) -> BlockSpec | None:
+    where = f"{sheet_id}.blocks[{index}]"
+    kind_node = node.get("kind") if node.is_map else None
+    declared = kinds.get(kind_node.value) if kind_node is not None else None
+    allowed = _BLOCK_KEYS
+    if declared is not None and declared.inputs_at_block_level:
+        allowed = tuple(k for k in _BLOCK_KEYS if k != "inputs") + tuple(
+            f.name for f in declared.inputs)
+    if not col.keys(node, allowed, where, required=("id", "kind")):
+        return None
+    v = node.value
+    block_id = _text(v.get("id"))
+    if block_id and not _ID.match(block_id):
+        col.error(v["id"].loc, f"{where}.id", "block id has characters outside [a-z0-9_-]",
+                  "[a-z0-9_-]+", repr(block_id))
+    kind = _text(v.get("kind"))
+    if kind and kind not in kinds:
+        col.error(v["kind"].loc, f"{sheet_id}.{block_id}.kind", f"unknown kind '{kind}'",
+                  "one of " + ", ".join(kinds), repr(kind), did_you_mean(kind, kinds))
+    checks = []
+    cnode = v.get("checks")
+    if cnode is not None and not cnode.is_list:
+        col.error(cnode.loc, f"{sheet_id}.{block_id}.checks", "not a list",
+                  "a list of {result, at_most | at_least, source}", repr(plain(cnode)))
+    elif cnode is not None:
+        for j, c in enumerate(cnode.value):
+            cwhere = f"{sheet_id}.{block_id}.checks[{j}]"
+            if not col.keys(c, _CHECK_KEYS, cwhere, required=("result",)):
+                continue
+            relations = [r for r in ("at_most", "at_least") if r in c.value]
+            if len(relations) != 1:
+                col.error(c.loc, cwhere, "a check needs exactly one of at_most | at_least",
+                          "exactly one", ", ".join(relations) or "none")
+                continue
+            checks.append(CheckSpec(result=_text(c.value["result"]), relation=relations[0],
+                                    limit_node=c.value[relations[0]],
+                                    source=_text(c.value.get("source")), loc=c.loc))
+    display = {}
+    dnode = v.get("display")
+    if dnode is not None:
+        if not dnode.is_map:
+            col.error(dnode.loc, f"{sheet_id}.{block_id}.display", "not a mapping",
+                      "RESULT: unit", repr(plain(dnode)))
+        else:
+            display = {k: _text(x) for k, x in dnode.value.items()}
+    inputs = v.get("inputs")
+    if declared is not None and declared.inputs_at_block_level:
+        names = {f.name for f in declared.inputs}
+        inputs = Node({k: x for k, x in v.items() if k in names}, node.loc,
+                      {k: x for k, x in node.key_locs.items() if k in names})
+    if inputs is not None and inputs.value is not None and not inputs.is_map:
+        col.error(inputs.loc, f"{sheet_id}.{block_id}.inputs", "not a mapping",
+                  "a mapping of input names to values", repr(plain(inputs)))
+        inputs = None
+    return BlockSpec(id=block_id, kind=kind, title=_text(v.get("title"), block_id),
+                     inputs=inputs if inputs is not None and inputs.value is not None else None,
+                     checks=checks, display=display, notes=_text(v.get("notes")), loc=node.loc,
+                     sheet_id=sheet_id)
+
+
+def _review(path: Path, root: Path, col: _Collector):
+    tree = _read(path, root, col)
+    if tree is None or not col.keys(tree, ("reviewer", "comments"), "review"):
+        return "", []
+    comments = []
+    cnode = tree.value.get("comments")
+    for i, c in enumerate(cnode.value if cnode is not None and cnode.is_list else []):
+        where = f"review.comments[{i}]"
+        if not col.keys(c, ("on", "by", "date", "text", "status", "response"), where,
+                        required=("on", "text", "status")):
+            continue
+        status = _text(c.value.get("status"))
+        if status not in ("open", "answered", "closed"):
+            col.error(c.value["status"].loc, f"{where}.status", "unknown status",
+                      "open | answered | closed", repr(status))
+        comments.append(ReviewComment(on=_text(c.value.get("on")), by=_text(c.value.get("by")),
+                                      date=_text(c.value.get("date")),
+                                      text=_text(c.value.get("text")), status=status,
+                                      response=_text(c.value.get("response")), loc=c.loc))
+    return _text(tree.value.get("reviewer")), comments

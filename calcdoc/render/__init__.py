@@ -1,0 +1,1 @@
+"""Rendering: HTML site, PDF package, formulas and plots. Rendering never computes."""

@@ -1,0 +1,298 @@
+"""The one pint registry, quantity parsing at the input boundary, and display formatting.
+
+Computation runs on coherent SI floats; pint is used only here, at the edges. The registry is built
+without ``autoconvert_offset_to_baseunit`` on purpose: that option turns ``W/(m*degC)`` into a value
+274 times too small. Absolute temperatures are split from their number and converted to kelvin
+before any arithmetic; inside a compound unit ``degC`` and ``degF`` are read as per-degree
+differences (FORMAT.md, Values).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from functools import lru_cache
+
+import pint
+
+__all__ = [
+    "ureg", "UnitProblem", "parse_unit", "parse_quantity_text", "convert", "dimension_text",
+    "format_number", "format_quantity", "pretty_unit", "latex_unit", "latex_number",
+    "latex_quantity", "same_dimension", "si_unit_for", "ABSOLUTE", "DIFFERENCE",
+]
+
+ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+
+ABSOLUTE = "absolute"
+DIFFERENCE = "difference"
+
+_LONE_ABSOLUTE = {"degC": "degC", "degF": "degF", "K": "K", "kelvin": "K", "degR": "degR",
+                  "celsius": "degC", "fahrenheit": "degF", "degree_Celsius": "degC",
+                  "degree_Fahrenheit": "degF"}
+_LONE_DIFFERENCE = {"K", "kelvin", "delta_degC", "delta_degF", "delta_celsius", "delta_fahrenheit"}
+
+_NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+
+
+class UnitProblem(ValueError):
+    """A unit or quantity text that cannot be read; carries expected and got for the message."""
+
+    def __init__(self, what: str, expected: str | None = None, got: str | None = None,
+                 hint: str | None = None):
+        self.what, self.expected, self.got, self.hint = what, expected, got, hint
+        super().__init__(what)
+
+
+def _normalise_unit_text(text: str) -> str:
+    text = text.strip()
+    for a, b in (("°C", "degC"), ("°F", "degF"), ("℃", "degC"), ("²", "^2"), ("³", "^3"),
+                 ("·", "*"), ("⋅", "*"), ("µ", "u"), ("Ω", "ohm")):
+        text = text.replace(a, b)
+    return text
+
+
+def _compound_degrees_as_differences(text: str) -> str:
+    # Inside a compound unit a degree is a per-degree difference: W/(m*degC) = W/(m*K).
+    return re.sub(r"(?<![A-Za-z_])deg([CF])(?![A-Za-z_])", r"delta_deg\1", text)
+
+
+@lru_cache(maxsize=512)
+def parse_unit(text: str) -> pint.Unit:
+    """Return the pint unit for a unit text; degC/degF inside compound units are differences."""
+    text = _normalise_unit_text(text)
+    if text in ("", "1", "dimensionless"):
+        return ureg.dimensionless
+    if text not in _LONE_ABSOLUTE:
+        text = _compound_degrees_as_differences(text)
+    try:
+        return ureg.parse_units(text)
+    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
+            TypeError, ValueError, AssertionError, SyntaxError, KeyError) as exc:
+        raise UnitProblem(f"unknown unit '{text}'", "a unit pint knows, such as m, W/(m*K), degC",
+                          repr(text)) from exc
+
+
+# Names a building engineer uses for common dimensions, with the coherent SI unit of each.
+_DIMENSION_NAMES = {
+    "m": "length", "m^2": "area", "m^3": "volume", "K": "temperature", "s": "time",
+    "kg": "mass", "W": "power", "W/m^2": "heat flux", "W/m": "heat flow per length",
+    "W/(m*K)": "thermal conductivity", "m^2*K/W": "thermal resistance",
+    "W/(m^2*K)": "heat transfer coefficient", "m*K/W": "thermal resistance per length",
+    "kg/m^3": "density", "J/(kg*K)": "specific heat capacity", "1/m": "inverse length",
+    "Pa": "pressure", "J/m^2": "energy per area", "J/(m^2*s^0.5*K)": "thermal inertia",
+    "m^0.5": "square root of length", "J": "energy", "m^2/s": "diffusivity",
+}
+
+
+@lru_cache(maxsize=None)
+def _dimension_names() -> dict[str, str]:
+    return {str(ureg.Quantity(1.0, u).dimensionality): f"{name} [{pretty_unit(u)}]"
+            for u, name in _DIMENSION_NAMES.items()}
+
+
+def dimension_text(unit: str | pint.Unit) -> str:
+    """Return the dimension of a unit in words, e.g. 'thermal conductivity [W/(m·K)]'."""
+    u = parse_unit(unit) if isinstance(unit, str) else unit
+    dim = str(ureg.Quantity(1.0, _as_multiplicative(u)).dimensionality)
+    if dim == "dimensionless":
+        return "dimensionless"
+    return _dimension_names().get(dim, dim)
+
+
+def _as_multiplicative(u: pint.Unit) -> pint.Unit:
+    name = str(u)
+    if name == "degree_Celsius":
+        return ureg.kelvin
+    if name == "degree_Fahrenheit":
+        return ureg.degree_Rankine
+    return u
+
+
+def si_unit_for(unit: str | pint.Unit) -> str:
+    """Return a coherent SI unit text with the unit's dimension, e.g. 'kW' → 'W'."""
+    u = parse_unit(unit) if isinstance(unit, str) else unit
+    dim = str(ureg.Quantity(1.0, _as_multiplicative(u)).dimensionality)
+    if dim == "dimensionless":
+        return "1"
+    for candidate in _DIMENSION_NAMES:
+        if str(ureg.Quantity(1.0, candidate).dimensionality) == dim:
+            return candidate
+    base = ureg.Quantity(1.0, _as_multiplicative(u)).to_base_units().units
+    return f"{base:~C}".replace("**", "^")
+
+
+def same_dimension(a: str, b: str) -> bool:
+    """Return True when two unit texts have the same dimension."""
+    return dimension_text(a) == dimension_text(b)
+
+
+def _is_temperature(unit: pint.Unit) -> bool:
+    return dimension_text(unit) == "[temperature]"
+
+
+def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,
+                        percent_required: bool = False) -> tuple[float, str]:
+    """Return (value in ``si_unit``, the unit as written) for a quantity text.
+
+    ``temperature`` is 'absolute' or 'difference' for temperature inputs; an absolute temperature
+    may be written in K, degC or degF, a difference only in K, delta_degC or delta_degF.
+    Raises UnitProblem with expected/got texts for the caller to locate.
+    """
+    match = _NUMBER.match(str(text))
+    if not match:
+        raise UnitProblem("not a quantity", f"a number and a unit in {pretty_unit(si_unit)}",
+                          repr(text))
+    number = float(match.group(1))
+    unit_text = _normalise_unit_text(match.group(2))
+    target = parse_unit(si_unit)
+    if unit_text in ("", "1", "dimensionless"):
+        if str(target) != "dimensionless" or percent_required:
+            expected = "a percentage such as '1.5 %'" if percent_required else \
+                f"a unit of {dimension_text(si_unit)} such as {pretty_unit(si_unit)}"
+            raise UnitProblem("a number without a unit", expected, repr(text))
+        return number, ""
+    if percent_required and unit_text not in ("%", "percent"):
+        raise UnitProblem("a fraction must be written with %", "a percentage such as '1.5 %'",
+                          repr(text))
+    is_temp_target = _is_temperature(target)
+    if is_temp_target and temperature == ABSOLUTE:
+        if unit_text in ("delta_degC", "delta_degF"):
+            raise UnitProblem("a temperature difference unit for an absolute temperature",
+                              "an absolute temperature in K, degC or degF", repr(text))
+        if unit_text not in _LONE_ABSOLUTE:
+            raise UnitProblem("not a temperature", "an absolute temperature in K, degC or degF",
+                              repr(text))
+        q = ureg.Quantity(number, ureg.parse_units(_LONE_ABSOLUTE[unit_text]))
+        return float(q.to(ureg.kelvin).magnitude), unit_text
+    if is_temp_target and temperature == DIFFERENCE:
+        if unit_text in ("degC", "degF", "celsius", "fahrenheit"):
+            raise UnitProblem("a temperature difference written as an absolute temperature",
+                              "a difference in K, delta_degC or delta_degF", repr(text),
+                              hint=f"write '{match.group(1)} K' or '{match.group(1)} delta_{unit_text}'")
+    unit = parse_unit(unit_text)
+    if dimension_text(unit) != dimension_text(target):
+        raise UnitProblem("wrong dimension", dimension_text(target),
+                          f"{dimension_text(unit)} in {str(text)!r}")
+    return float(ureg.Quantity(number, unit).to(target).magnitude), unit_text
+
+
+def convert(value: float, from_unit: str, to_unit: str) -> float:
+    """Return ``value`` converted between two unit texts; absolute degC/degF handled by offset."""
+    if from_unit == to_unit:
+        return value
+    f = _normalise_unit_text(from_unit)
+    t = _normalise_unit_text(to_unit)
+    if f in _LONE_ABSOLUTE and t in _LONE_ABSOLUTE:
+        q = ureg.Quantity(value, ureg.parse_units(_LONE_ABSOLUTE[f]))
+        return float(q.to(ureg.parse_units(_LONE_ABSOLUTE[t])).magnitude)
+    return float(ureg.Quantity(value, parse_unit(f)).to(parse_unit(t)).magnitude)
+
+
+# ---------------------------------------------------------------- display
+
+_SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
+_PRETTY_NAMES = {"degC": "°C", "degF": "°F", "delta_degC": "°C", "delta_degF": "°F",
+                 "percent": "%", "ohm": "Ω", "um": "µm", "1": "", "dimensionless": ""}
+
+
+def _superscript(exponent: str) -> str:
+    if exponent == "0.5":
+        return "½"
+    return exponent.translate(_SUPERSCRIPT)
+
+
+def pretty_unit(unit: str) -> str:
+    """Return a unit text for people: 'W/(m^2*K)' → 'W/(m²·K)', 'degC' → '°C'."""
+    text = _normalise_unit_text(unit)
+    if text in _PRETTY_NAMES:
+        return _PRETTY_NAMES[text]
+    text = re.sub(r"\^\((-?[\d.]+)\)|\^(-?[\d.]+)",
+                  lambda m: _superscript(m.group(1) or m.group(2)), text)
+    text = re.sub(r"\*\*(-?\d+)", lambda m: m.group(1).translate(_SUPERSCRIPT), text)
+    text = re.sub(r"delta_deg([CF])", r"°\1", text)
+    text = re.sub(r"(?<![A-Za-z_])deg([CF])", r"°\1", text)
+    return text.replace("*", "·")
+
+
+def latex_unit(unit: str) -> str:
+    """Return the unit as upright LaTeX: 'W/(m^2*K)' → '\\mathrm{W/(m^{2}\\,K)}'."""
+    text = _normalise_unit_text(unit)
+    if text in ("", "1", "dimensionless"):
+        return ""
+    if text in ("%", "percent"):
+        return r"\%"
+    text = re.sub(r"delta_deg([CF])|(?<![A-Za-z_])deg([CF])",
+                  lambda m: "{}^{\\circ}" + (m.group(1) or m.group(2)), text)
+    text = re.sub(r"\^\((-?[\d.]+)\)|\^(-?[\d.]+)", lambda m: "^{" + (m.group(1) or m.group(2)) + "}",
+                  text)
+    text = re.sub(r"\*\*(-?\d+)", r"^{\1}", text)
+    text = text.replace("*", r"\cdot ")
+    return r"\mathrm{" + text + "}"
+
+
+def format_number(value: float, sig: int = 3) -> str:
+    """Return ``value`` with ``sig`` significant figures for a report.
+
+    Integers digits are never rounded away (12345.6 → '12346', not '12300'); very large or small
+    magnitudes use powers of ten ('1.23×10⁻⁵').
+    """
+    if value is None:
+        return "—"
+    if isinstance(value, float) and (math.isnan(value) or math.isinf(value)):
+        return str(value)
+    if value == 0:
+        return "0"
+    magnitude = math.floor(math.log10(abs(value)))
+    if magnitude >= 7 or magnitude <= -4:
+        mantissa = f"{value / 10 ** magnitude:.{max(sig - 1, 0)}f}"
+        if float(mantissa) in (10.0, -10.0):
+            magnitude += 1
+            mantissa = f"{value / 10 ** magnitude:.{max(sig - 1, 0)}f}"
+        return f"{mantissa}×10{str(magnitude).translate(_SUPERSCRIPT)}"
+    decimals = max(sig - 1 - magnitude, 0)
+    text = f"{round(value, decimals):.{decimals}f}"
+    if text.startswith("-") and float(text) == 0:
+        text = text[1:]
+    return text.replace("-", "−")
+
+
+def latex_number(value: float, sig: int = 3) -> str:
+    """Return the number as LaTeX, with powers of ten as \\times 10^{n}."""
+    text = format_number(value, sig).replace("−", "-")
+    if "×10" in text:
+        mantissa, power = text.split("×10")
+        power = power.translate(str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻", "0123456789-"))
+        return rf"{mantissa} \times 10^{{{power}}}"
+    return text
+
+
+def _kelvin_sig(value: float, unit: str, sig: int) -> int:
+    # An absolute temperature in kelvin has three integer digits: show it to 0.01 K.
+    return max(sig, 5) if unit in ("K", "kelvin") and abs(value) >= 100 else sig
+
+
+def format_quantity(value_si: float, si_unit: str, display_unit: str | None = None,
+                    sig: int = 3) -> str:
+    """Return '0.273 W/(m²·K)' for a value held in ``si_unit``, shown in ``display_unit``."""
+    unit = display_unit or si_unit
+    value = convert(value_si, si_unit, unit)
+    sig = _kelvin_sig(value, unit, sig)
+    shown = pretty_unit(unit)
+    number = format_number(value, sig)
+    if not shown:
+        return number
+    if shown == "%":
+        return f"{number} %"
+    return f"{number} {shown}"
+
+
+def latex_quantity(value_si: float, si_unit: str, display_unit: str | None = None,
+                   sig: int = 3) -> str:
+    """Return the quantity as LaTeX with a thin space between number and unit."""
+    unit = display_unit or si_unit
+    value = convert(value_si, si_unit, unit)
+    number = latex_number(value, _kelvin_sig(value, unit, sig))
+    lu = latex_unit(unit)
+    if value < 0:
+        number = f"({number})" if not lu else number
+    return f"{number}\\,{lu}" if lu else number
