@@ -184,7 +184,7 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
                 errors.append(InputError(spec.loc, f"{spec.key}.display.{result}",
                                          "display unit of the wrong dimension",
                                          dimension_text(declared.unit), repr(unit)))
-    out = BlockOutput(kind, project.precision, spec.display)
+    out = BlockOutput(kind, project.precision, spec.display, spec.key)
     try:
         kind.compute(inp, out)
     except PhysicsRangeError as exc:
@@ -236,7 +236,8 @@ def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
                        resolve_ref=lambda n, p: (_ for _ in ()).throw(InputError(
                            n.loc, where, "a check limit cannot be a reference",
                            "a quantity or {named: ...}", repr(n.value))),
-                       sheet_id=spec.sheet_id, block_id=spec.id, precision=project.precision)
+                       sheet_id=spec.sheet_id, block_id=spec.id, precision=project.precision,
+                       section="")
     field = Quantity(check.result, meaning="limit", unit=declared.unit,
                      temperature=declared.temperature)
     try:

@@ -305,6 +305,12 @@ def _block(node: Node, sheet_id: str, index: int, col: _Collector, kinds) -> Blo
     where = f"{sheet_id}.blocks[{index}]"
     kind_node = node.get("kind") if node.is_map else None
     declared = kinds.get(kind_node.value) if kind_node is not None else None
+    if kind_node is not None and declared is None:
+        kind = _text(kind_node)
+        block_id = _text(node.get("id"), f"blocks[{index}]")
+        col.error(kind_node.loc, f"{sheet_id}.{block_id}.kind", f"unknown kind '{kind}'",
+                  "one of " + ", ".join(kinds), repr(kind), did_you_mean(kind, kinds))
+        return None  # its other keys cannot be judged without the kind
     allowed = _BLOCK_KEYS
     if declared is not None and declared.inputs_at_block_level:
         allowed = tuple(k for k in _BLOCK_KEYS if k != "inputs") + tuple(
@@ -317,9 +323,6 @@ def _block(node: Node, sheet_id: str, index: int, col: _Collector, kinds) -> Blo
         col.error(v["id"].loc, f"{where}.id", "block id has characters outside [a-z0-9_-]",
                   "[a-z0-9_-]+", repr(block_id))
     kind = _text(v.get("kind"))
-    if kind and kind not in kinds:
-        col.error(v["kind"].loc, f"{sheet_id}.{block_id}.kind", f"unknown kind '{kind}'",
-                  "one of " + ", ".join(kinds), repr(kind), did_you_mean(kind, kinds))
     checks = []
     cnode = v.get("checks")
     if cnode is not None and not cnode.is_list:

@@ -127,7 +127,7 @@ def same_dimension(a: str, b: str) -> bool:
 
 
 def _is_temperature(unit: pint.Unit) -> bool:
-    return dimension_text(unit) == "[temperature]"
+    return str(ureg.Quantity(1.0, _as_multiplicative(unit)).dimensionality) == "[temperature]"
 
 
 def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,

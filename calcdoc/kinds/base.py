@@ -146,14 +146,17 @@ class InputContext:
     sheet_id: str = ""
     block_id: str = ""
     precision: int = 3
+    section: str = "inputs"  # where the values sit in the block, for messages
 
     def error(self, node_or_loc, path: str, what: str, expected=None, got=None, hint=None):
         loc = node_or_loc.loc if isinstance(node_or_loc, Node) else node_or_loc
         self.errors.append(InputError(loc, self.where(path), what, expected, got, hint))
 
     def where(self, path: str) -> str:
-        return f"{self.sheet_id}.{self.block_id}.inputs.{path}" if path else \
-            f"{self.sheet_id}.{self.block_id}"
+        base = f"{self.sheet_id}.{self.block_id}"
+        if not path:
+            return base
+        return f"{base}.{self.section}.{path}" if self.section else f"{base}.{path}"
 
 
 class _Invalid(Exception):
@@ -654,8 +657,10 @@ class ResultValue:
 class BlockOutput:
     """What ``compute`` writes: steps, results, series, notes, warnings and figure data."""
 
-    def __init__(self, kind: "Kind", precision: int = 3, display: dict | None = None):
+    def __init__(self, kind: "Kind", precision: int = 3, display: dict | None = None,
+                 block_key: str = ""):
         self.kind = kind
+        self.block_key = block_key  # 'SHEET.block', for messages
         self.precision = precision
         self.display_overrides = display or {}
         self.results: dict[str, ResultValue] = {}

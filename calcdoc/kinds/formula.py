@@ -190,7 +190,7 @@ def _evaluate(tree: ast.AST, names: dict[str, Given], loc: Location, where: str)
         magnitude = float(q.magnitude)
         if not math.isfinite(magnitude) or abs(magnitude) > MAX_MAGNITUDE:
             fail("result too large or not a number", f"a magnitude below {MAX_MAGNITUDE:g}",
-                 repr(magnitude))
+                 f"{magnitude:.4g}")
         return q
 
     def dimensionless(q, what):
@@ -426,18 +426,18 @@ def _compute(inp, out):
         expr: Expression = step["expr"]
         unit, unit_loc = step["unit"] if isinstance(step["unit"], tuple) else (step["unit"],
                                                                                  expr.loc)
-        where = f"{out.kind.name}.steps[{i}]"
+        where = f"{out.block_key}.steps[{i}]"
         if not name.isidentifier() or name in FUNCTIONS or name in CONSTANTS:
             raise InputError(expr.loc, where, f"'{name}' cannot be a step name",
                              "a name of letters, digits and _", repr(name))
         if name in names:
             raise InputError(expr.loc, where, f"'{name}' is already defined",
                              "a new name", repr(name))
-        q = _evaluate(expr.tree, names, expr.loc, f"steps[{i}] ({name})")
+        q = _evaluate(expr.tree, names, expr.loc, f"{out.block_key}.steps[{i}] ({name})")
         lone = unit.strip() in _LONE_TEMPERATURES
         target = parse_unit("K" if lone else unit)
         if q.dimensionality != ureg.Quantity(1.0, target).dimensionality:
-            raise InputError(expr.loc, f"steps[{i}] ({name})",
+            raise InputError(expr.loc, f"{out.block_key}.steps[{i}] ({name})",
                              "the expression's unit does not match the step's unit",
                              f"{dimension_text(target)} for '{unit}'",
                              dimension_text(q.units))

@@ -1,0 +1,45 @@
+# Two commands for a fresh machine:
+#   make demo   create .venv, install calcdoc with its test extras, build the demo package
+#   make test   the same set-up, then the whole test suite
+# System packages the PDF path and the tests need are installed with apt-get when missing
+# (as root), or the build stops and names them.
+
+PYTHON ?= python3
+VENV := .venv
+PY := $(VENV)/bin/python
+DEMO := projects/cold-store
+SYSTEM_PACKAGES := libpango-1.0-0 libpangoft2-1.0-0 fonts-dejavu-core poppler-utils chromium chromium-driver
+
+.PHONY: demo test bench system clean
+
+demo: system $(VENV)/.installed
+	$(VENV)/bin/calcdoc build $(DEMO) --out build/cold-store
+
+test: system $(VENV)/.installed
+	$(PY) -m pytest
+
+bench: system $(VENV)/.installed
+	$(PY) bench/bench_build.py
+	$(PY) bench/bench_transient.py
+
+system:
+	@missing=""; \
+	for p in $(SYSTEM_PACKAGES); do dpkg -s $$p >/dev/null 2>&1 || missing="$$missing $$p"; done; \
+	if [ -n "$$missing" ]; then \
+	  if [ "$$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then \
+	    echo "installing system packages:$$missing"; \
+	    apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $$missing >/dev/null; \
+	  else \
+	    echo "missing system packages:$$missing"; \
+	    echo "install them with: sudo apt-get install$$missing"; exit 1; \
+	  fi; \
+	fi
+
+$(VENV)/.installed: pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(PY) -m pip install -q --upgrade pip
+	$(PY) -m pip install -q -e '.[test]'
+	touch $@
+
+clean:
+	rm -rf build $(VENV)
