@@ -154,7 +154,8 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
         return None  # reported by the loader
     ctx = InputContext(materials=project.materials, named=project.named,
                        resolve_ref=_resolver(spec, done, failed), sheet_id=spec.sheet_id,
-                       block_id=spec.id, precision=project.precision)
+                       block_id=spec.id, precision=project.precision,
+                       unit_system=project.units)
     node = spec.inputs if spec.inputs is not None else Node({}, spec.loc)
     try:
         inp = convert_fields(kind.inputs, node, ctx, "", kind.exactly_one, kind.at_most_one)
@@ -184,7 +185,7 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
                 errors.append(InputError(spec.loc, f"{spec.key}.display.{result}",
                                          "display unit of the wrong dimension",
                                          dimension_text(declared.unit), repr(unit)))
-    out = BlockOutput(kind, project.precision, spec.display, spec.key)
+    out = BlockOutput(kind, project.precision, spec.display, spec.key, project.units)
     try:
         kind.compute(inp, out)
     except PhysicsRangeError as exc:
@@ -246,7 +247,7 @@ def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
         errors.extend(ctx.errors or [exc])
         return None
     source = check.source or (ctx.records[0].source if ctx.records else "")
-    shown = out.display_overrides.get(check.result) or declared.display_unit()
+    shown = out.display_overrides.get(check.result) or declared.display_unit(project.units)
     sig = project.precision
 
     if check.result not in out.results:
@@ -282,7 +283,8 @@ def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
         value_text = format_quantity(value, declared.unit, shown, sig)
         limit_text = format_quantity(limit, declared.unit, shown, sig)
     margin_unit = "K" if declared.temperature else declared.unit
-    margin_shown = "K" if declared.temperature else shown
+    margin_shown = ("delta_degF" if project.units == "US" else "K") if declared.temperature \
+        else shown
     return CheckResult(check.result, check.relation, value, limit, declared.unit, margin,
                        utilisation, passed, source, value_text, limit_text,
                        format_quantity(margin, margin_unit, margin_shown, sig))

@@ -18,7 +18,7 @@ import pint
 __all__ = [
     "ureg", "UnitProblem", "parse_unit", "parse_quantity_text", "convert", "dimension_text",
     "format_number", "format_quantity", "pretty_unit", "latex_unit", "latex_number",
-    "latex_quantity", "same_dimension", "si_unit_for", "ABSOLUTE", "DIFFERENCE",
+    "latex_quantity", "same_dimension", "si_unit_for", "display_unit_for", "ABSOLUTE", "DIFFERENCE",
 ]
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
@@ -119,6 +119,34 @@ def si_unit_for(unit: str | pint.Unit) -> str:
             return candidate
     base = ureg.Quantity(1.0, _as_multiplicative(u)).to_base_units().units
     return f"{base:~C}".replace("**", "^")
+
+
+# Display units for `units: US` (display only: computation stays in coherent SI).
+_US_UNITS = {
+    "m": "ft", "m^2": "ft^2", "m^3": "ft^3", "W": "Btu/h", "W/m^2": "Btu/(h*ft^2)",
+    "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*degF)", "m^2*K/W": "h*ft^2*degF/Btu",
+    "W/(m^2*K)": "Btu/(h*ft^2*degF)", "m*K/W": "h*ft*degF/Btu", "kg/m^3": "lb/ft^3",
+    "J/(kg*K)": "Btu/(lb*degF)", "kg": "lb", "Pa": "psi", "J/m^2": "Btu/ft^2",
+}
+_SMALL_LENGTHS = {"mm", "cm", "in", "millimeter"}
+
+
+def display_unit_for(si_unit: str, preferred: str | None, temperature: str | None,
+                     system: str = "SI") -> str:
+    """Return the unit to show a value in: the preferred one (SI) or its US counterpart."""
+    if system != "US":
+        if preferred:
+            return preferred
+        return "degC" if temperature == ABSOLUTE else si_unit
+    if temperature == ABSOLUTE:
+        return "degF"
+    if temperature == DIFFERENCE or (si_unit == "K" and temperature is None):
+        return "delta_degF"
+    if si_unit == "m" and preferred in _SMALL_LENGTHS:
+        return "in"
+    if preferred in ("min", "h", "s"):
+        return preferred
+    return _US_UNITS.get(si_unit, preferred or si_unit)
 
 
 def same_dimension(a: str, b: str) -> bool:

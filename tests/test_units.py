@@ -78,3 +78,14 @@ def test_significant_figures_keep_integer_digits():
     assert format_number(12345.6, 3) == "12346"
     assert format_number(0.00012345, 3) == "1.23×10⁻⁴"
     assert format_number(-4.0, 3) == "−4.00"
+
+
+def test_us_display_units__u_value_in_btu():
+    # 1 Btu/(h·ft²·°F) = 5.678263 W/(m²·K) (NIST SP 811 B.9): 0.273 W/(m²·K) = 0.0481
+    from calcdoc.units import display_unit_for
+    unit = display_unit_for("W/(m^2*K)", None, None, "US")
+    assert format_quantity(0.273, "W/(m^2*K)", unit) == "0.0481 Btu/(h·ft²·°F)"
+    # 21 °C = 69.8 °F (T/°F = 1.8·t/°C + 32)
+    assert format_quantity(294.15, "K", display_unit_for("K", None, "absolute", "US")) == "69.8 °F"
+    # 100 mm = 3.94 in (1 in = 25.4 mm exactly, NIST SP 811 B.9)
+    assert format_quantity(0.1, "m", display_unit_for("m", "mm", None, "US")) == "3.94 in"

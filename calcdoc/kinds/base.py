@@ -41,8 +41,8 @@ from typing import Any, Callable
 from calcdoc.errors import InputError, Location
 from calcdoc.located import Node, plain
 from calcdoc.units import (ABSOLUTE, DIFFERENCE, UnitProblem, convert, dimension_text,
-                           format_number, format_quantity, latex_quantity, parse_quantity_text,
-                           pretty_unit)
+                           display_unit_for, format_quantity, latex_quantity,
+                           parse_quantity_text, pretty_unit)
 
 __all__ = [
     "REQUIRED", "ABSOLUTE", "DIFFERENCE", "Field", "Quantity", "Choice", "Text", "Items",
@@ -147,6 +147,7 @@ class InputContext:
     block_id: str = ""
     precision: int = 3
     section: str = "inputs"  # where the values sit in the block, for messages
+    unit_system: str = "SI"  # display only
 
     def error(self, node_or_loc, path: str, what: str, expected=None, got=None, hint=None):
         loc = node_or_loc.loc if isinstance(node_or_loc, Node) else node_or_loc
@@ -260,7 +261,10 @@ class Quantity(Field):
             parts.append(f"<= {fmt(self.at_most)}")
         return ", ".join(parts)
 
-    def _display_unit(self, written_unit: str) -> str:
+    def _display_unit(self, written_unit: str, system: str = "SI") -> str:
+        if system == "US":
+            return display_unit_for(self.unit, self.display or written_unit, self.temperature,
+                                    "US")
         if self.display:
             return self.display
         if written_unit:
@@ -315,7 +319,7 @@ class Quantity(Field):
         return value
 
     def _record(self, ctx, path, written, value, written_unit, source, origin, ref=None, loc=None):
-        shown = self._display_unit(written_unit)
+        shown = self._display_unit(written_unit, ctx.unit_system)
         ctx.records.append(InputRecord(
             path=path, meaning=self.meaning, written=written, si=value, si_unit=self.unit,
             display=format_quantity(value, self.unit, shown, ctx.precision), source=source,
@@ -396,7 +400,8 @@ class Quantity(Field):
         self._check_range(value, ctx, node, path, entry["value"])
         ctx.records.append(InputRecord(
             path=path, meaning=self.meaning, written=f"named {name}", si=value, si_unit=self.unit,
-            display=format_quantity(value, self.unit, self._display_unit(written_unit),
+            display=format_quantity(value, self.unit,
+                                    self._display_unit(written_unit, ctx.unit_system),
                                     ctx.precision),
             source=entry.get("source", ""), origin="named", loc=node.loc))
         return value
@@ -639,12 +644,8 @@ class ResultSpec:
     display: str | None = None
     list: bool = False
 
-    def display_unit(self) -> str:
-        if self.display:
-            return self.display
-        if self.temperature == ABSOLUTE:
-            return "degC"
-        return self.unit
+    def display_unit(self, system: str = "SI") -> str:
+        return display_unit_for(self.unit, self.display, self.temperature, system)
 
 
 @dataclass
@@ -658,8 +659,9 @@ class BlockOutput:
     """What ``compute`` writes: steps, results, series, notes, warnings and figure data."""
 
     def __init__(self, kind: "Kind", precision: int = 3, display: dict | None = None,
-                 block_key: str = ""):
+                 block_key: str = "", unit_system: str = "SI"):
         self.kind = kind
+        self.unit_system = unit_system
         self.block_key = block_key  # 'SHEET.block', for messages
         self.precision = precision
         self.display_overrides = display or {}
@@ -693,7 +695,7 @@ class BlockOutput:
                 raise KeyError(f"result '{name}' is not declared by kind {self.kind.name}")
             spec = ResultSpec(name, unit, meaning, temperature, display)
             self._specs[name] = spec
-        shown = self.display_overrides.get(name) or spec.display_unit()
+        shown = self.display_overrides.get(name) or spec.display_unit(self.unit_system)
         if isinstance(value, (list, tuple)):
             value = [float(v) for v in value]
             text = ", ".join(format_quantity(v, spec.unit, shown, self.precision) for v in value)
