@@ -57,7 +57,9 @@ def _convert(node: yaml.Node, path: str, constructor: _Constructor, errors: list
         out: dict[str, Node] = {}
         key_locs: dict[str, Location] = {}
         for key_node, value_node in node.value:
-            key = constructor.construct_object(key_node, deep=True)
+            # Keys are names as written: YAML 1.1 would read `on:` or `no:` as booleans.
+            key = key_node.value if isinstance(key_node, yaml.ScalarNode) else \
+                constructor.construct_object(key_node, deep=True)
             key_loc = _loc(path, key_node.start_mark)
             if not isinstance(key, str):
                 key = str(key)

@@ -141,6 +141,32 @@ def _flux(packed: _Emitters, separation: float, x: np.ndarray, y: np.ndarray) ->
     return np.sum(factor * packed.emissive_power, axis=-1)
 
 
+def _corner_slope(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """d/dA of the dimensionless case B-3 factor at (A, B); by symmetry d/dB is (B, A)."""
+    p2 = 1.0 + a * a
+    return (np.arctan(b / np.sqrt(p2)) / (p2 * np.sqrt(p2)) + b / (p2 * (p2 + b * b))) / (
+        2.0 * np.pi)
+
+
+def _flux_and_gradient(packed: _Emitters, separation: float,
+                       point: np.ndarray) -> tuple[float, np.ndarray]:
+    """Incident flux at one foot point and its gradient in (x, y), for the local optimiser."""
+    c = separation
+    left = (point[0] - packed.x) / c
+    right = (packed.x + packed.width - point[0]) / c
+    below = (point[1] - packed.y) / c
+    above = (packed.y + packed.height - point[1]) / c
+    power = packed.emissive_power
+    flux = np.sum(power * (_corner_factor(right, above, 1.0) + _corner_factor(left, above, 1.0)
+                           + _corner_factor(right, below, 1.0)
+                           + _corner_factor(left, below, 1.0)))
+    d_x = (-_corner_slope(right, above) + _corner_slope(left, above)
+           - _corner_slope(right, below) + _corner_slope(left, below))
+    d_y = (-_corner_slope(above, right) - _corner_slope(above, left)
+           + _corner_slope(below, right) + _corner_slope(below, left))
+    return float(flux), np.array([np.sum(power * d_x), np.sum(power * d_y)]) / c
+
+
 def incident_flux(emitters: Sequence[Emitter], separation: float, x: ArrayLike,
                   y: ArrayLike) -> float | np.ndarray:
     r"""Return the radiant flux incident on a small receiver facing a plane of emitters.
@@ -220,12 +246,13 @@ def _search(packed: _Emitters, separation: float, margin: float, starts: int) ->
     scale = float(values[order[0]])
     best = WorstPoint(float(cx[order[0]]), float(cy[order[0]]), scale)
 
-    def objective(point: np.ndarray) -> float:
-        return -float(_flux(packed, separation, point[0], point[1])) / scale
+    def objective(point: np.ndarray) -> tuple[float, np.ndarray]:
+        flux, gradient = _flux_and_gradient(packed, separation, point)
+        return -flux / scale, -gradient / scale
 
     for index in order:
         found = minimize(objective, np.array([cx[index], cy[index]]), method="L-BFGS-B",
-                         bounds=bounds, options={"ftol": 1e-13, "gtol": 1e-10})
+                         jac=True, bounds=bounds, options={"ftol": 1e-13, "gtol": 1e-10})
         q = -float(found.fun) * scale
         if q > best.q:
             best = WorstPoint(float(found.x[0]), float(found.x[1]), q)
@@ -261,10 +288,11 @@ def worst_point(emitters: Sequence[Emitter], separation: float, *, margin: float
     -----
     Global search: a grid over the emitters' bounding box (plus the margin), fine enough to
     resolve half the separation and half the narrowest emitter (21 to 161 points a side), with
-    every emitter's centre added; then a bounded quasi-Newton optimiser (L-BFGS-B) from the best
-    few candidates among the grid's local peaks and those centres. The worst point of several openings need not face any of them: between two
-    openings both contribute. The maximum lies inside the bounding box, since outside it every
-    factor grows towards the box, so the bounded search covers it. Assumptions as in
+    every emitter's centre added; then a bounded quasi-Newton optimiser (L-BFGS-B, with the
+    analytic gradient of the B-3 sums) from the best few candidates among the grid's local peaks
+    and those centres. The worst point of several openings need not face any of them: between
+    two openings both contribute. The maximum lies inside the bounding box, since outside it
+    every factor grows towards the box, so the bounded search covers it. Assumptions as in
     :func:`incident_flux`.
 
     Examples
@@ -355,7 +383,7 @@ def flux_against_separation(emitters: Sequence[Emitter], separations: ArrayLike,
 
 def minimum_separation(emitters: Sequence[Emitter], limit: float,
                        receiver: tuple[float, float] | None = None, *,
-                       scan_points: int = 48) -> MinimumSeparation:
+                       scan_points: int = 32) -> MinimumSeparation:
     r"""Return the smallest separation beyond which the incident flux never exceeds a limit.
 
     .. math::
@@ -372,7 +400,7 @@ def minimum_separation(emitters: Sequence[Emitter], limit: float,
         A fixed receiver point (x, y) [m]; omitted: the worst point of the receiving plane at
         each separation.
     scan_points : int
-        Number of separations in the bracketing scan; default 48.
+        Number of separations in the bracketing scan; default 32.
 
     Returns
     -------
@@ -385,15 +413,16 @@ def minimum_separation(emitters: Sequence[Emitter], limit: float,
     When no emitter's E exceeds the limit, no point can exceed it (the element factors of
     non-overlapping coplanar rectangles sum to at most 1), so the worst-point answer is 0 at
     once, its flux that of the hottest emitter at contact. Otherwise the flux at any point is
-    below :math:`\sum_i E_i A_i / (\pi s^2)`, which bounds the search from above. The separations from 10⁻⁶ of that bound up to it are scanned on a geometric
-    grid to bracket the last crossing of the limit (the flux at a point beside the openings
-    first rises with separation, then falls), and the crossing is then located by Brent's
-    method (scipy ``brentq``), not by stepping. For a given point whose flux never exceeds
-    the limit, the peak of the scan is refined by a bounded scalar search before 0 is
-    returned. If the worst-point flux is already below the limit at the first scanned
-    separation, that separation (10⁻⁶ of the bound) is returned as a conservative answer.
-    Assumptions as in :func:`incident_flux`; the limit (for example a piloted ignition flux)
-    and its source belong to the caller.
+    below :math:`\sum_i E_i A_i / (\pi s^2)`, which bounds the search from above. The
+    separations from 10⁻⁴ of that bound up to it are scanned on a geometric grid to bracket the
+    last crossing of the limit (the flux at a point beside the openings first rises with
+    separation, then falls), and the crossing is then located by Brent's method (scipy
+    ``brentq``), not by stepping. For a given point whose flux never exceeds the limit on the
+    scan, the peak of the scan is refined by a bounded scalar search before 0 is returned. If
+    the worst-point flux is already below the limit at the first scanned separation, that
+    separation (10⁻⁴ of the bound) is returned as a conservative answer. Assumptions as in
+    :func:`incident_flux`; the limit (for example a piloted ignition flux) and its source
+    belong to the caller.
 
     Examples
     --------
@@ -424,7 +453,7 @@ def minimum_separation(emitters: Sequence[Emitter], limit: float,
         return MinimumSeparation(0.0, True, x, y, emax)
     power = float(np.sum(packed.emissive_power * packed.width * packed.height))
     upper_bound = math.sqrt(power / (math.pi * q_limit))
-    separations = np.geomspace(1e-6 * upper_bound, upper_bound, int(scan_points))
+    separations = np.geomspace(1e-4 * upper_bound, upper_bound, int(scan_points))
 
     def excess_at(s: float) -> float:
         return _governing(packed, s, point).q - q_limit
