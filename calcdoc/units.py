@@ -296,7 +296,9 @@ def latex_number(value: float, sig: int = 3) -> str:
 
 def _kelvin_sig(value: float, unit: str, sig: int) -> int:
     # An absolute temperature in kelvin has three integer digits: show it to 0.01 K.
-    return max(sig, 5) if unit in ("K", "kelvin") and abs(value) >= 100 else sig
+    # (Differences of a few hundred kelvin occur in fire; absolute temperatures below 200 K do
+    # not occur in building work.)
+    return max(sig, 5) if unit in ("K", "kelvin") and abs(value) >= 200 else sig
 
 
 def format_quantity(value_si: float, si_unit: str, display_unit: str | None = None,

@@ -286,8 +286,8 @@ def concrete_specific_heat_peak(moisture_content: float) -> float:
     if not np.isfinite(u) or u < 0.0 or u > _MOISTURE_LIMIT + 1e-12:
         raise PhysicsRangeError(
             "concrete moisture content", u,
-            "0 to 0.03 (0 to 3 % by weight, EN 1992-1-2 §3.3.2(2)); above 3 % explosive spalling "
-            "must be assessed, EN 1992-1-2 §4.5.1(2)")
+            "u from 0 to 0.03, i.e. 0 to 3 % by weight (EN 1992-1-2 §3.3.2(2)); above 3 % "
+            "explosive spalling must be assessed (EN 1992-1-2 §4.5.1(2))")
     if u <= 0.015:
         return 900.0 + (1470.0 - 900.0) * u / 0.015
     return 1470.0 + (2020.0 - 1470.0) * (min(u, _MOISTURE_LIMIT) - 0.015) / 0.015
