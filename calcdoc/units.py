@@ -18,7 +18,7 @@ import pint
 __all__ = [
     "ureg", "UnitProblem", "parse_unit", "parse_quantity_text", "convert", "dimension_text",
     "format_number", "format_quantity", "pretty_unit", "latex_unit", "latex_number",
-    "latex_quantity", "same_dimension", "si_unit_for", "display_unit_for", "ABSOLUTE", "DIFFERENCE",
+    "latex_quantity", "pretty_written", "same_dimension", "si_unit_for", "display_unit_for", "ABSOLUTE", "DIFFERENCE",
 ]
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
@@ -282,6 +282,19 @@ def format_number(value: float, sig: int = 3) -> str:
     if text.startswith("-") and float(text) == 0:
         text = text[1:]
     return text.replace("-", "−")
+
+
+def pretty_written(text: str) -> str | None:
+    """Return a quantity text as written, with display typography: '102.5 mm' → '102.5 mm',
+    '0.5 W/(m*degC)' → '0.5 W/(m·°C)'. None when the text is not a number and a unit."""
+    match = _NUMBER.match(str(text))
+    if not match:
+        return None
+    number = match.group(1).replace("-", "−")
+    unit = pretty_unit(match.group(2)) if match.group(2) else ""
+    if not unit:
+        return number
+    return f"{number} {unit}"
 
 
 def latex_number(value: float, sig: int = 3) -> str:

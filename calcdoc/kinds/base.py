@@ -42,7 +42,7 @@ from calcdoc.errors import InputError, Location
 from calcdoc.located import Node, plain
 from calcdoc.units import (ABSOLUTE, DIFFERENCE, UnitProblem, convert, dimension_text,
                            display_unit_for, format_quantity, latex_quantity,
-                           parse_quantity_text, pretty_unit)
+                           parse_quantity_text, pretty_unit, pretty_written)
 
 __all__ = [
     "REQUIRED", "ABSOLUTE", "DIFFERENCE", "Field", "Quantity", "Choice", "Text", "Items",
@@ -320,10 +320,14 @@ class Quantity(Field):
 
     def _record(self, ctx, path, written, value, written_unit, source, origin, ref=None, loc=None):
         shown = self._display_unit(written_unit, ctx.unit_system)
+        # An input is shown as the engineer wrote it (never rounded to the project precision),
+        # unless it must be converted for display (US units, or a fixed display unit).
+        as_written = pretty_written(written) if shown == written_unit or (
+            not written_unit and shown == self.unit) else None
         ctx.records.append(InputRecord(
             path=path, meaning=self.meaning, written=written, si=value, si_unit=self.unit,
-            display=format_quantity(value, self.unit, shown, ctx.precision), source=source,
-            origin=origin, ref=ref, loc=loc))
+            display=as_written or format_quantity(value, self.unit, shown, ctx.precision),
+            source=source, origin=origin, ref=ref, loc=loc))
 
     def convert(self, node: Node, ctx: InputContext, path: str):
         source = ""
