@@ -189,7 +189,7 @@ class Field:
     def default_text(self) -> str:
         if self.default is REQUIRED:
             return "required"
-        if self.default is None:
+        if self.default is None or self.default == "":
             return "optional"
         return str(self.default)
 
@@ -250,7 +250,9 @@ class Quantity(Field):
         parts = []
         shown = self.display or self.unit
         def fmt(v):
-            return format_quantity(v, self.unit, shown if not self.percent else "%", 6)
+            unit = "%" if self.percent else shown
+            text = f"{convert(v, self.unit, unit):g}"
+            return f"{text} {pretty_unit(unit)}".rstrip()
         if self.greater_than is not None:
             parts.append(f"> {fmt(self.greater_than)}")
         if self.at_least is not None:
@@ -464,7 +466,7 @@ class Record(Field):
 
     def describe(self) -> dict:
         d = super().describe()
-        d["fields"] = [f.describe() for f in self.fields]
+        d["fields"] = _describe_fields(self.fields, self.exactly_one)
         return d
 
     def convert(self, node, ctx, path):
@@ -489,7 +491,7 @@ class Items(Field):
 
     def describe(self) -> dict:
         d = super().describe()
-        d["fields"] = [f.describe() for f in self.fields]
+        d["fields"] = _describe_fields(self.fields, self.exactly_one)
         return d
 
     def from_default(self, ctx, parent, path):
@@ -574,6 +576,18 @@ class FreeMapping(Field):
         if failed:
             raise _Invalid
         return out
+
+
+def _describe_fields(fields, exactly_one=()) -> list[dict]:
+    """Describe fields; a field in an exactly-one group says so instead of 'required'."""
+    out = []
+    for f in fields:
+        d = f.describe()
+        for group in exactly_one:
+            if f.name in group and f.required:
+                d["default"] = "exactly one of " + " | ".join(group)
+        out.append(d)
+    return out
 
 
 def convert_fields(fields, node: Node, ctx: InputContext, path: str,
@@ -768,7 +782,7 @@ class Kind:
 
     def describe(self) -> dict:
         return {"name": self.name, "title": self.title, "summary": self.summary,
-                "inputs": [f.describe() for f in self.inputs],
+                "inputs": _describe_fields(self.inputs, self.exactly_one),
                 "exactly_one": [list(g) for g in self.exactly_one],
                 "results": [{"name": r.name, "unit": pretty_unit(r.unit), "meaning": r.meaning,
                              "temperature": r.temperature or ""} for r in self.results],
