@@ -215,6 +215,12 @@ def load_project(folder: str | Path) -> Project:
     if (root / "review.yaml").is_file():
         input_files.append(root / "review.yaml")
         reviewer, comments = _review(root / "review.yaml", root, col)
+        targets = {s.id for s in sheets} | {b.key for s in sheets for b in s.blocks}
+        for c in comments:
+            if c.on not in targets:
+                col.error(c.loc, "review.comments.on", f"comment on unknown sheet or block "
+                          f"'{c.on}'", "an existing SHEET or SHEET.block", repr(c.on),
+                          did_you_mean(c.on, targets))
 
     if col.errors:
         raise InputErrors(col.errors)

@@ -159,3 +159,12 @@ def test_refuses_to_replace_a_folder_it_did_not_build(tmp_path, capsys):
     assert status == 2
     assert (out / "drawing.dwg").read_text() == "not ours"
     assert f"{out}: error: --out: refusing to replace a folder calcdoc did not build" in err
+
+
+def test_review_comment_on_unknown_block(tmp_path, capsys):
+    review = "reviewer: R. R\ncomments:\n  - {on: F1.lod, text: Check, status: open}\n"
+    status, err = run_build(tmp_path, capsys, {"f1": FORMULA_SHEET}, extra={"review.yaml": review})
+    assert status == 2
+    assert err[0] == ("proj/review.yaml:3:5: error: review.comments.on: comment on unknown sheet "
+                      "or block 'F1.lod' (expected an existing SHEET or SHEET.block, got 'F1.lod'); "
+                      "hint: did you mean 'F1.load'?")
