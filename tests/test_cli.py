@@ -1,0 +1,56 @@
+"""The command line: new, kinds, check; exit codes as FORMAT.md states them."""
+
+import json
+
+from calcdoc.cli import main
+from calcdoc.kinds import registry
+
+
+def test_new_writes_a_starter_that_builds(tmp_path, capsys):
+    folder = tmp_path / "starter"
+    assert main(["new", str(folder)]) == 0
+    assert (folder / "project.yaml").is_file()
+    out = tmp_path / "out"
+    assert main(["build", str(folder), "--out", str(out), "--no-pdf"]) == 0
+    doc = json.loads((out / "results.json").read_text())
+    assert [s["id"] for s in doc["sheets"]] == ["W1", "L1"]
+
+
+def test_new_refuses_a_folder_with_files(tmp_path, capsys):
+    folder = tmp_path / "busy"
+    folder.mkdir()
+    (folder / "notes.txt").write_text("keep")
+    assert main(["new", str(folder)]) == 2
+    assert "refusing to write into a folder that is not empty" in capsys.readouterr().err
+    assert sorted(p.name for p in folder.iterdir()) == ["notes.txt"]
+
+
+def test_kinds_lists_every_kind_and_the_named_values(capsys):
+    assert main(["kinds"]) == 0
+    out = capsys.readouterr().out
+    for name in registry():
+        assert name in out
+    # 12.5 kW/m² piloted ignition of wood (common practice)
+    assert "wood_piloted_ignition_flux" in out and "12.5 kW/m^2" in out
+
+
+def test_kinds_explains_every_input_of_a_kind(capsys):
+    assert main(["kinds", "radiant_exposure"]) == 0
+    out = capsys.readouterr().out
+    for field in registry()["radiant_exposure"].inputs:
+        assert f"  {field.name}:" in out
+
+
+def test_unknown_kind_is_a_usage_error(capsys):
+    assert main(["kinds", "layered_wal"]) == 2
+    assert "did you mean 'layered_wall'?" in capsys.readouterr().err
+
+
+def test_check_json_prints_results_json(tmp_path, capsys):
+    folder = tmp_path / "starter"
+    main(["new", str(folder)])
+    capsys.readouterr()
+    assert main(["check", str(folder), "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["format_version"] == 1
+    assert not (folder / "build").exists()
