@@ -34,31 +34,47 @@ class BuildReport:
     files: list[str] = field(default_factory=list)
 
 
+def _same_person(a: str, b: str) -> bool:
+    """Return whether two signatures name the same person ('A. Engineer' = 'a engineer')."""
+    def norm(name: str) -> str:
+        return "".join(ch for ch in name.casefold() if ch.isalnum())
+    return bool(norm(a)) and norm(a) == norm(b)
+
+
 def final_refusals(package: Package) -> list[str]:
-    """Return every reason the package may not be issued as final (empty: it may)."""
+    """Return every reason the package may not be issued as final (empty: it may).
+
+    Final means: the current revision has an approver, every sheet is checked at the current
+    revision by someone other than its preparer, every check passes and no review comment is
+    open (FORMAT.md, Command line)."""
     project = package.project
     rev = project.revision
     reasons = []
     if not rev.approved.strip():
-        reasons.append(f"revision {rev.rev} has no approver")
+        reasons.append(f"revision {rev.rev} has no approver (project.yaml revisions: "
+                       f"approved is empty)")
     for sheet in package.sheets:
         sign = sheet.spec.signoff
         checked, prepared = sign.get("checked"), sign.get("prepared")
+        if prepared is None:
+            reasons.append(f"sheet {sheet.id} has no preparer (signoff.prepared)")
         if checked is None:
-            reasons.append(f"sheet {sheet.id} is not checked")
-        elif checked.rev != rev.rev:
-            reasons.append(f"sheet {sheet.id} is checked at revision {checked.rev}, "
-                           f"not the current revision {rev.rev}")
-        elif prepared is not None and prepared.by.strip() == checked.by.strip():
-            reasons.append(f"sheet {sheet.id} is checked by its preparer ({checked.by})")
+            reasons.append(f"sheet {sheet.id} is not checked (signoff.checked)")
+        else:
+            if checked.rev != rev.rev:
+                reasons.append(f"sheet {sheet.id} is checked at revision {checked.rev}, "
+                               f"not at the current revision {rev.rev}")
+            if prepared is not None and _same_person(prepared.by, checked.by):
+                reasons.append(f"sheet {sheet.id} is checked by its preparer ({checked.by})")
         for block in sheet.blocks:
             for c in block.checks:
                 if not c.passed:
-                    reasons.append(f"check {block.key}.{c.result} fails "
-                                   f"({c.value_display} against {c.limit_display})")
-    for c in project.comments:
+                    relation = "at most" if c.relation == "at_most" else "at least"
+                    reasons.append(f"check {block.key}.{c.result} fails: {c.value_display}, "
+                                   f"required {relation} {c.limit_display}")
+    for n, c in enumerate(project.comments, start=1):
         if c.status == "open":
-            reasons.append(f"review comment on {c.on} is open: {c.text}")
+            reasons.append(f"review comment C{n} on {c.on} is open ({c.loc}): {c.text}")
     return reasons
 
 

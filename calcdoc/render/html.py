@@ -2,25 +2,31 @@
 
 :func:`package_view` turns an evaluated :class:`~calcdoc.model.Package` into plain dicts that the
 templates print: nothing here computes a physical value. The same view feeds the site (MathML,
-inline SVG) and the PDF (formula images), so both show the same numbers and the same citations.
+inline SVG) and the PDF (formula images), so both show the same numbers, the same line breaks in
+long formulas and the same citation numbers.
+
+Anchors are stable and readable: a block is ``SHEET.block`` and a result ``SHEET.block.result``
+(a reviewer can link "EW1.wall.U"); a check row is ``SHEET.block.result.check``; a reference is
+``ref-N``; a review comment is ``comment-N`` where it is shown and ``log-N`` in the comment log.
 """
 
 from __future__ import annotations
 
+import base64
 import re
 from pathlib import Path
 
 import jinja2
 import markdown
 import nh3
-from markupsafe import Markup
+from markupsafe import Markup, escape
 
 from calcdoc import __version__
-from calcdoc.render.math import mathml, svg_img
+from calcdoc.render.math import mathml, split_formula, svg_img
 from calcdoc.units import latex_quantity
 
 __all__ = ["package_view", "render_site", "render_package_html", "environment", "TEMPLATES",
-           "CAUTION", "sheet_page_name"]
+           "CAUTION", "PRELIMINARY", "sheet_page_name", "notes_html", "initials", "Citations"]
 
 TEMPLATES = Path(__file__).resolve().parent.parent.parent / "templates"
 if not TEMPLATES.is_dir():  # installed as a wheel: templates are package data
@@ -31,13 +37,19 @@ CAUTION = ("These calculations support, and do not replace, the judgement of a l
            "jurisdiction. Results depend on the inputs and methods stated; check both before "
            "relying on them.")
 
+PRELIMINARY = "PRELIMINARY — NOT FOR CONSTRUCTION"
+
+# Width of the right-hand side of a formula step before it is broken [pt]: about two thirds of
+# the A4 text width, so that symbol, '=' and a long sum still read as one line of working.
+STEP_WIDTH_PT = 360.0
+
 _ALLOWED_TAGS = {"p", "em", "strong", "code", "pre", "ul", "ol", "li", "blockquote", "a", "br",
                  "h3", "h4", "h5", "table", "thead", "tbody", "tr", "th", "td", "sub", "sup",
                  "hr"}
 
 
 def notes_html(text: str) -> Markup:
-    """Return Markdown notes as sanitised HTML (no scripts, no styles, no remote images)."""
+    """Return Markdown notes as sanitised HTML (no scripts, no styles, no images, no raw HTML)."""
     if not text:
         return Markup("")
     html = markdown.markdown(text, extensions=["tables"], output_format="html")
@@ -56,6 +68,7 @@ def initials(name: str) -> str:
 
 
 def sheet_page_name(sheet_id: str) -> str:
+    """Return the site page of a sheet: 'EW1' → 'sheet-EW1.html'."""
     return f"sheet-{sheet_id}.html"
 
 
@@ -82,33 +95,69 @@ class Citations:
                 for text, n in sorted(self.numbers.items(), key=lambda kv: kv[1])]
 
 
+class _Links:
+    """Where an anchor lives: on a site page, or in the one PDF document."""
+
+    def __init__(self, target: str):
+        self.target = target
+
+    def anchor(self, key: str) -> str:
+        """Return the link to a sheet, block or result key ('EW1', 'EW1.wall', 'EW1.wall.U')."""
+        if self.target == "site":
+            return f"{sheet_page_name(key.split('.')[0])}#{key}"
+        return f"#{key}"
+
+    def index(self, fragment: str) -> str:
+        """Return the link to a part of the front or back matter (references, comment log)."""
+        return f"index.html#{fragment}" if self.target == "site" else f"#{fragment}"
+
+
+_NUMERIC = re.compile(r"^[−+\-]?\d")
+
+
 def _relation(relation: str) -> str:
     return "≤" if relation == "at_most" else "≥"
 
 
-def _block_view(block, cites: Citations, math, comments_on, target: str) -> dict:
+def _step_view(step, math, precision: int) -> dict:
+    """Return a step as a checker writes it: symbol = formula = numbers = result, one per line."""
+    if isinstance(step.value_si, (list, tuple)):
+        result = ""
+    else:
+        result = latex_quantity(float(step.value_si), step.si_unit, step.display_unit, precision)
+    rows = []
+    for kind, latex in (("formula", step.formula), ("substituted", step.substituted),
+                        ("result", result)):
+        if not latex or any(latex == r["latex"] for r in rows):
+            continue
+        lines = split_formula("= " + latex, STEP_WIDTH_PT)
+        rows.append({"kind": kind, "latex": latex, "lines": [math(line) for line in lines]})
+    return {"symbol": math(step.symbol), "rows": rows, "label": step.label,
+            "display": step.display if not result else "",
+            "alt": " = ".join([step.symbol] + [r["latex"] for r in rows])}
+
+
+def _block_view(block, cites: Citations, math, comments_on, links: _Links) -> dict:
     out = block.output
     key = block.key
+    # Citations are numbered in reading order: method, inputs, assumptions, steps, warnings, checks.
+    method = [n for n in (cites.cite(ref, key) for ref in block.kind.references) if n]
     inputs = []
     for r in block.inputs:
         inputs.append({"path": r.path, "meaning": r.meaning, "display": r.display,
+                       "numeric": bool(_NUMERIC.match(str(r.display))),
                        "written": r.written, "origin": r.origin, "ref": r.ref,
-                       "ref_href": _ref_href(r.ref, target) if r.ref else None,
+                       "ref_href": links.anchor(_ref_key(r.ref, block)) if r.ref else None,
                        "cite": cites.cite(r.source, key) if r.origin != "ref" else None,
                        "source": r.source,
                        "where": f"{r.loc.file}:{r.loc.line}" if r.loc and r.loc.line else ""})
+    notes = [{"text": n["text"], "cite": cites.cite(n.get("source", ""), key)}
+             for n in out.notes]
     steps = []
     for s in out.steps:
-        result = (latex_quantity(float(s.value_si), s.si_unit, s.display_unit, out.precision)
-                  if not isinstance(s.value_si, (list, tuple)) else "")
-        parts = [s.symbol, s.formula]
-        if s.substituted and s.substituted != s.formula:
-            parts.append(s.substituted)
-        if result:
-            parts.append(result)
-        latex = " = ".join(parts)
-        steps.append({"label": s.label, "latex": latex, "math": math(latex),
-                      "display": s.display, "cite": cites.cite(s.source, key)})
+        view = _step_view(s, math, out.precision)
+        view["cite"] = cites.cite(s.source, key)
+        steps.append(view)
     results = []
     for name, r in out.results.items():
         results.append({"name": name, "meaning": r.spec.meaning, "display": r.display,
@@ -117,79 +166,129 @@ def _block_view(block, cites: Citations, math, comments_on, target: str) -> dict
         spec = out._specs.get(name)
         results.append({"name": name, "meaning": spec.meaning if spec else "", "display": why,
                         "anchor": f"{key}.{name}", "absent": True})
+    for name, series in out.series.items():
+        if name in out.results or name in out.absent:
+            continue
+        results.append({"name": name, "meaning": series.label or f"{series.y_unit} over "
+                        f"{series.x_label}", "display": f"curve of {len(series.x)} points"
+                        + (" (figure)" if block.kind.figures is not None else ""),
+                        "anchor": f"{key}.{name}", "absent": False})
+    warnings = [{"text": w["message"], "cite": cites.cite(w.get("source", ""), key)}
+                for w in out.warnings]
     checks = []
+    seen_anchors: set[str] = set()
     for c in block.checks:
+        anchor = f"{key}.{c.result}.check"
+        if anchor in seen_anchors:  # two checks on one result (at least and at most)
+            anchor = f"{anchor}-{c.relation}"
+        seen_anchors.add(anchor)
         checks.append({"result": c.result, "relation": _relation(c.relation),
                        "value": c.value_display, "limit": c.limit_display,
                        "margin": c.margin_display,
                        "utilisation": f"{c.utilisation:.2f}" if c.utilisation is not None
                        and c.utilisation != float("inf") else "—",
-                       "passed": c.passed, "note": c.note,
-                       "cite": cites.cite(c.source, key), "anchor": f"{key}.{c.result}",
-                       "block": key, "block_title": block.spec.title})
-    notes = [{"text": n["text"], "cite": cites.cite(n["source"], key)} for n in out.notes]
-    warnings = [{"text": w["message"], "cite": cites.cite(w["source"], key)}
-                for w in out.warnings]
-    figures = []
-    if block.kind.figures is not None:
-        for fig in block.kind.figures(block):
-            figures.append({"key": fig.key, "caption": fig.caption, "svg": Markup(fig.svg),
-                            "img": Markup(_svg_data_img(fig.svg, fig.caption))})
-    for ref in block.kind.references:
-        cites.cite(ref, key)
+                       "passed": c.passed, "note": c.note, "source": c.source,
+                       "cite": cites.cite(c.source, key), "anchor": anchor,
+                       "href": links.anchor(anchor),
+                       "result_href": links.anchor(f"{key}.{c.result}"),
+                       "block": key, "block_href": links.anchor(key),
+                       "block_title": block.spec.title, "sheet": block.spec.sheet_id})
+    figures = [{"key": fig.key, "caption": fig.caption, "svg": Markup(fig.svg),
+                "img": _svg_data_img(fig.svg, fig.caption)} for fig in _figures_of(block)]
     return {"key": key, "id": block.id, "title": block.spec.title, "kind": block.kind.name,
-            "kind_title": block.kind.title, "inputs": inputs, "steps": steps,
-            "results": results, "checks": checks, "notes": notes, "warnings": warnings,
-            "figures": figures, "caution": block.kind.caution,
+            "kind_title": block.kind.title, "method": method, "inputs": inputs,
+            "steps": steps, "results": results, "checks": checks, "notes": notes,
+            "warnings": warnings, "figures": figures, "caution": block.kind.caution,
             "block_notes": notes_html(block.spec.notes),
             "comments": comments_on.get(key, []), "passed": block.passed,
+            "failed": sum(1 for c in checks if not c["passed"]),
             "series": list(out.series)}
 
 
-def _ref_href(ref: str, target: str) -> str:
-    """Return the link to a result anchor: another page on the site, in-document in the PDF."""
-    if target == "site":
-        return f"{sheet_page_name(ref.split('.')[0])}#{ref}"
-    return f"#{ref}"
+def _figures_of(block) -> list:
+    """Return the block's figures, drawn once for both the site and the PDF."""
+    if block.kind.figures is None:
+        return []
+    cached = block.__dict__.get("_calcdoc_figures")
+    if cached is None:
+        cached = list(block.kind.figures(block))
+        block.__dict__["_calcdoc_figures"] = cached
+    return cached
 
 
-def _svg_data_img(svg: str, alt: str) -> str:
-    import base64
-    from markupsafe import escape
+def _ref_key(ref: str, block) -> str:
+    """Return the full key of a ``ref`` (a two-part ref names a block of the same sheet)."""
+    return ref if ref.count(".") >= 2 else f"{block.spec.sheet_id}.{ref}"
+
+
+def _svg_data_img(svg: str, alt: str) -> Markup:
     data = base64.b64encode(svg.encode("utf-8")).decode("ascii")
-    return f'<img class="figure" alt="{escape(alt)}" src="data:image/svg+xml;base64,{data}">'
+    return Markup(f'<img class="figure" alt="{escape(alt)}" '
+                  f'src="data:image/svg+xml;base64,{data}">')
+
+
+def _signoff_view(signoff: dict, current_rev: str) -> dict:
+    return {role: {"by": s.by, "initials": initials(s.by), "date": s.date, "rev": s.rev,
+                   "current": s.rev == current_rev}
+            for role, s in signoff.items()}
+
+
+def _signoff_state(signoff: dict, current_rev: str) -> str:
+    """Return the sheet's sign-off state in words, as the index shows it."""
+    checked, prepared = signoff.get("checked"), signoff.get("prepared")
+    if prepared is None:
+        return "not prepared"
+    if checked is None:
+        return "not checked"
+    if checked["rev"] != current_rev:
+        return f"checked at {checked['rev']}, not at {current_rev}"
+    if checked["by"].strip() == prepared["by"].strip():
+        return "checked by its preparer"
+    return f"checked at {current_rev}"
 
 
 def package_view(package, target: str = "site") -> dict:
     """Return the whole package as view data for the templates (``target``: site | pdf)."""
+    if target not in ("site", "pdf"):
+        raise ValueError(f"target must be site or pdf, got {target!r}")
     project = package.project
     math = mathml if target == "site" else svg_img
+    links = _Links(target)
     cites = Citations()
+    current = project.revision.rev
+    keys = {s.id for s in package.sheets} | {b.key for s in package.sheets for b in s.blocks}
     comments_on: dict[str, list[dict]] = {}
     comments = []
     for i, c in enumerate(project.comments, start=1):
         item = {"n": i, "on": c.on, "by": c.by, "date": c.date, "text": c.text,
-                "status": c.status, "response": c.response}
+                "status": c.status, "response": c.response, "found": c.on in keys,
+                "href": links.anchor(c.on) if c.on in keys else None,
+                "comment_href": (f"{sheet_page_name(c.on.split('.')[0])}#comment-{i}"
+                                 if target == "site" else f"#comment-{i}")
+                if c.on in keys else None}
         comments.append(item)
         comments_on.setdefault(c.on, []).append(item)
     sheets = []
     for index, sheet in enumerate(package.sheets):
-        blocks = [_block_view(b, cites, math, comments_on, target) for b in sheet.blocks]
+        blocks = [_block_view(b, cites, math, comments_on, links) for b in sheet.blocks]
         spec = sheet.spec
-        signoff = {role: {"by": s.by, "initials": initials(s.by), "date": s.date, "rev": s.rev}
-                   for role, s in spec.signoff.items()}
+        signoff = _signoff_view(spec.signoff, current)
         checks = [c for b in blocks for c in b["checks"]]
         sheet_comments = comments_on.get(spec.id, [])
         all_comments = sheet_comments + [c for b in blocks for c in b["comments"]]
+        state = _signoff_state(signoff, current)
         sheets.append({
             "id": spec.id, "title": spec.title, "file": spec.relpath,
-            "page": sheet_page_name(spec.id), "notes": notes_html(spec.notes),
-            "signoff": signoff, "blocks": blocks, "checks": checks,
+            "page": sheet_page_name(spec.id), "href": links.anchor(spec.id),
+            "notes": notes_html(spec.notes),
+            "signoff": signoff, "signoff_state": state,
+            "signed_off": state == f"checked at {current}",
+            "blocks": blocks, "checks": checks,
             "failed": sum(1 for c in checks if not c["passed"]),
             "comments": sheet_comments,
+            "comment_count": len(all_comments),
             "open_comments": sum(1 for c in all_comments if c["status"] == "open"),
-            "checked_current": "checked" in spec.signoff
-            and spec.signoff["checked"].rev == project.revision.rev,
+            "checked_current": "checked" in signoff and signoff["checked"]["current"],
             "index": index,
         })
     for i, sheet in enumerate(sheets):
@@ -197,6 +296,9 @@ def package_view(package, target: str = "site") -> dict:
         sheet["next"] = sheets[i + 1] if i + 1 < len(sheets) else None
     revision = project.revision
     all_checks = [c for s in sheets for c in s["checks"]]
+    references = cites.listing()
+    for r in references:
+        r["uses"] = [{"key": key, "href": links.anchor(key)} for key in r["uses"]]
     return {
         "calcdoc_version": __version__,
         "project": {"number": project.number, "title": project.title, "client": project.client,
@@ -207,11 +309,15 @@ def package_view(package, target: str = "site") -> dict:
                      "approved": revision.approved},
         "revisions": [vars(r) for r in project.revisions],
         "preliminary": not revision.approved.strip(),
+        "preliminary_text": PRELIMINARY,
         "sheets": sheets,
         "checks": all_checks,
         "failed": sum(1 for c in all_checks if not c["passed"]),
-        "references": cites.listing(),
+        "references": references,
+        "references_href": links.index("references"),
+        "index_prefix": links.index(""),
         "comments": comments,
+        "comment_log_href": links.index("comment-log"),
         "open_comments": sum(1 for c in comments if c["status"] == "open"),
         "reviewer": project.reviewer,
         "caution": CAUTION,
@@ -220,8 +326,10 @@ def package_view(package, target: str = "site") -> dict:
 
 
 def environment() -> jinja2.Environment:
+    """Return the template environment: autoescaped, strict about undefined names."""
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(TEMPLATES)),
-                             autoescape=jinja2.select_autoescape(["html", "xml"]),
+                             autoescape=jinja2.select_autoescape(["html", "xml"],
+                                                                 default_for_string=True),
                              undefined=jinja2.StrictUndefined, trim_blocks=True,
                              lstrip_blocks=True, keep_trailing_newline=True)
     env.globals["sheet_page_name"] = sheet_page_name
@@ -237,7 +345,7 @@ def render_site(view: dict, out_dir: Path) -> list[Path]:
     css.write_text((TEMPLATES / "style.css").read_text(encoding="utf-8"), encoding="utf-8")
     written.append(css)
     index = out_dir / "index.html"
-    index.write_text(env.get_template("index.html").render(view=view, page=None),
+    index.write_text(env.get_template("index.html").render(view=view, page="index.html"),
                      encoding="utf-8")
     written.append(index)
     template = env.get_template("sheet.html")

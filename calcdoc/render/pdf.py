@@ -10,12 +10,20 @@ from __future__ import annotations
 
 import datetime
 import hashlib
+import logging
 from pathlib import Path
+from urllib.parse import unquote, urlsplit
 
 import weasyprint
 from weasyprint.urls import FatalURLFetchingError, URLFetcher
 
-__all__ = ["write_pdf", "ConfinedFetcher"]
+__all__ = ["write_pdf", "ConfinedFetcher", "ResourceRefused"]
+
+LOGGER = logging.getLogger("calcdoc.pdf")
+
+
+class ResourceRefused(FatalURLFetchingError):
+    """A resource outside the build folder, or missing, was asked for: the build fails."""
 
 
 class ConfinedFetcher(URLFetcher):
@@ -27,16 +35,22 @@ class ConfinedFetcher(URLFetcher):
         self.refused: list[str] = []
 
     def fetch(self, url, headers=None):
+        """Return the resource at ``url``; raise :class:`ResourceRefused` for anything else."""
         if url.startswith("data:"):
             return super().fetch(url, headers)
-        if url.startswith("file://"):
-            path = Path(url[len("file://"):].split("?")[0].split("#")[0]).resolve()
-            if path == self.folder or self.folder in path.parents:
+        parts = urlsplit(url)
+        if parts.scheme == "file" and parts.netloc in ("", "localhost"):
+            path = Path(unquote(parts.path)).resolve()
+            if self.folder in path.parents:
                 if not path.is_file():
-                    raise FatalURLFetchingError(f"missing asset {path}")
+                    self._refuse(url, "missing asset")
                 return super().fetch(url, headers)
+        self._refuse(url, "resource outside the build folder refused")
+
+    def _refuse(self, url: str, why: str):
         self.refused.append(url)
-        raise FatalURLFetchingError(f"resource outside the build folder refused: {url}")
+        LOGGER.error("%s: %s", why, url)
+        raise ResourceRefused(f"{why}: {url}")
 
 
 def write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[str, bytes]],
@@ -44,7 +58,7 @@ def write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[s
     """Render ``html`` (with style.css in ``work_dir``) to ``target`` as PDF/A-3b."""
     fetcher = ConfinedFetcher(work_dir)
     when = _fixed_datetime(revision_date)
-    files = [weasyprint.Attachment(string=data, name=name, description=f"calcdoc input {name}",
+    files = [weasyprint.Attachment(string=data, name=name, description=_describe(name),
                                    created=when, modified=when, relationship="Source",
                                    url_fetcher=fetcher, base_url=str(work_dir))
              for name, data in attachments]
@@ -60,3 +74,9 @@ def _fixed_datetime(date_text: str) -> datetime.datetime:
     except ValueError:
         day = datetime.date(2000, 1, 1)
     return datetime.datetime(day.year, day.month, day.day, tzinfo=datetime.timezone.utc)
+
+
+def _describe(name: str) -> str:
+    if name == "results.json":
+        return "calcdoc results (results.json, coherent SI)"
+    return f"calcdoc input file {name}"

@@ -1,0 +1,144 @@
+"""`calcdoc build --final`: a package is issued as final only when it is fit to sign.
+
+The rule (FORMAT.md, Command line) is the trade's sign-off practice: the current revision has an
+approver, every sheet is checked at that revision by someone other than its preparer (common
+practice: a calculation is never checked by its author), every check passes and no review comment
+is open. A refusal exits 1, lists every reason at once and writes nothing.
+"""
+
+from __future__ import annotations
+
+import textwrap
+from pathlib import Path
+
+import pytest
+
+from calcdoc.cli import main
+
+PROJECT = """\
+project: {{number: "T-101", title: Test store, client: Test client, site: Test site,
+           organisation: Test engineers}}
+package: {{number: TP-9, title: Test package}}
+revisions:
+  - {{rev: P1, date: 2026-11-10, purpose: For review, by: AE, checked: BC, approved: ""}}
+  - {{rev: C1, date: 2026-12-01, purpose: For construction, by: AE, checked: BC,
+     approved: "{approver}"}}
+"""
+
+# A worked formula whose numbers anyone can check by hand: 0.25 W/(m²·K) × 100 m² × 20 K = 500 W.
+SHEET = """\
+id: {id}
+title: Wall {id} heat loss
+signoff:
+  prepared: {{by: {prepared}, date: 2026-11-20, rev: C1}}
+{checked}
+blocks:
+  - id: loss
+    kind: formula
+    title: Fabric heat loss
+    given:
+      U: 0.25 W/(m^2*K)
+      A: {{value: 100 m^2, source: Drawing A-101 (example)}}
+      dT: 20 K
+    steps:
+      - {{name: Q, expr: "U * A * dT", unit: W, label: Heat loss}}
+    checks:
+      - {{result: Q, at_most: {limit}, source: Plant allowance (example)}}
+"""
+
+
+def write(root: Path, approver: str, sheets: list[dict], review: str | None = None) -> Path:
+    """Write a project folder: ``sheets`` give id, prepared, checked line and check limit."""
+    (root / "sheets").mkdir(parents=True)
+    (root / "project.yaml").write_text(PROJECT.format(approver=approver))
+    for s in sheets:
+        (root / "sheets" / f"{s['id'].lower()}.yaml").write_text(SHEET.format(**s))
+    if review is not None:
+        (root / "review.yaml").write_text(textwrap.dedent(review))
+    return root
+
+
+def checked(by: str, rev: str = "C1") -> str:
+    return f"  checked: {{by: {by}, date: 2026-11-24, rev: {rev}}}"
+
+
+def good_sheet(sheet_id: str) -> dict:
+    return {"id": sheet_id, "prepared": "A. Engineer", "checked": checked("B. Checker"),
+            "limit": "600 W"}
+
+
+def test_final_refuses_listing_every_reason_and_writes_nothing(tmp_path, capsys):
+    project = write(tmp_path / "proj", approver="", sheets=[
+        good_sheet("W1"),
+        # checked at an earlier revision than the current one
+        {"id": "W2", "prepared": "A. Engineer", "checked": checked("B. Checker", rev="P1"),
+         "limit": "600 W"},
+        # checked by its own preparer (written differently: same person)
+        {"id": "W3", "prepared": "A. Engineer", "checked": checked("a engineer"),
+         "limit": "600 W"},
+        # never checked
+        {"id": "W4", "prepared": "A. Engineer", "checked": "", "limit": "600 W"},
+        # 500 W against a 400 W allowance: the check fails
+        {"id": "W5", "prepared": "A. Engineer", "checked": checked("B. Checker"),
+         "limit": "400 W"},
+    ], review="""\
+        reviewer: R. Reviewer
+        comments:
+          - {on: W1.loss, by: RR, date: 2026-11-26, text: Confirm the wall area, status: open,
+             response: ""}
+          - {on: W2, by: RR, date: 2026-11-26, text: Typo in title, status: closed,
+             response: Fixed}
+        """)
+    out = tmp_path / "out"
+    code = main(["build", str(project), "--out", str(out), "--no-pdf", "--final"])
+    err = capsys.readouterr().err
+    assert code == 1
+    assert "--final refused" in err
+    reasons = [line.strip()[2:] for line in err.splitlines() if line.strip().startswith("- ")]
+    assert len(reasons) == 6, err
+    assert any("revision C1 has no approver" in r for r in reasons)
+    assert any("sheet W2 is checked at revision P1, not at the current revision C1" in r
+               for r in reasons)
+    assert any("sheet W3 is checked by its preparer" in r for r in reasons)
+    assert any("sheet W4 is not checked" in r for r in reasons)
+    assert any("check W5.loss.Q fails" in r and "400 W" in r for r in reasons)
+    assert any("review comment C1 on W1.loss is open" in r and "Confirm the wall area" in r
+               for r in reasons)
+    assert not any("W2" in r and "Typo" in r for r in reasons), "a closed comment is no reason"
+    assert not out.exists(), "a refused --final build writes nothing"
+
+
+def test_final_builds_when_approved_checked_passing_and_no_comment_open(tmp_path, capsys):
+    project = write(tmp_path / "proj", approver="C. Approver",
+                    sheets=[good_sheet("W1"), good_sheet("W2")], review="""\
+        reviewer: R. Reviewer
+        comments:
+          - {on: W1.loss, by: RR, date: 2026-11-26, text: Confirm the wall area,
+             status: answered, response: Checked against A-101}
+          - {on: W2, by: RR, date: 2026-11-26, text: Typo in title, status: closed,
+             response: Fixed}
+        """)
+    out = tmp_path / "out"
+    code = main(["build", str(project), "--out", str(out), "--no-pdf", "--final"])
+    assert code == 0, capsys.readouterr().err
+    index = (out / "index.html").read_text(encoding="utf-8")
+    assert "PRELIMINARY" not in index
+    assert "approved by C. Approver at revision C1" in index
+
+
+def test_without_final_an_unapproved_package_builds_marked_preliminary(tmp_path, capsys):
+    project = write(tmp_path / "proj", approver="", sheets=[good_sheet("W1")])
+    out = tmp_path / "out"
+    code = main(["build", str(project), "--out", str(out), "--no-pdf"])
+    assert code == 0, capsys.readouterr().err
+    assert "PRELIMINARY — NOT FOR CONSTRUCTION" in (out / "index.html").read_text("utf-8")
+
+
+@pytest.mark.parametrize("approver", ["", "   "])
+def test_final_treats_a_blank_approver_as_none(tmp_path, capsys, approver):
+    project = write(tmp_path / "proj", approver=approver, sheets=[good_sheet("W1")])
+    code = main(["build", str(project), "--out", str(tmp_path / "out"), "--no-pdf",
+                 "--final"])
+    err = capsys.readouterr().err
+    assert code == 1
+    assert "revision C1 has no approver" in err
