@@ -87,3 +87,13 @@ def test_every_check_in_the_demo_is_evaluated(demo):
     checks = [c for s in doc["sheets"] for b in s["blocks"] for c in b["checks"]]
     assert len(checks) >= 15
     assert all(isinstance(c["passed"], bool) for c in checks)
+
+
+def test_materials_appendix_lists_each_material_with_its_source(demo):
+    index = (demo / "index.html").read_text()
+    section = index.split('id="materials"')[1].split('id="references"')[0]
+    # brick_clay: 0.77 W/(m·K), the library's value (CIBSE Guide A Table 3.52, from memory)
+    assert "<code>brick_clay</code>" in section and "0.770 W/(m·K)" in section
+    assert "temperature-dependent (en1992_concrete)" in section
+    # the EN 1992-1-2 concrete law is plotted once, though two W7 blocks use it
+    assert section.count("Temperature-dependent material laws used") == 1

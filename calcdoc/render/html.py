@@ -23,7 +23,7 @@ from markupsafe import Markup, escape
 
 from calcdoc import __version__
 from calcdoc.render.math import mathml, split_formula, svg_img
-from calcdoc.units import latex_quantity
+from calcdoc.units import format_quantity, latex_quantity
 
 __all__ = ["package_view", "render_site", "render_package_html", "environment", "TEMPLATES",
            "CAUTION", "PRELIMINARY", "sheet_page_name", "notes_html", "initials", "Citations"]
@@ -193,16 +193,49 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links) -> di
                        "result_href": links.anchor(f"{key}.{c.result}"),
                        "block": key, "block_href": links.anchor(key),
                        "block_title": block.spec.title, "sheet": block.spec.sheet_id})
-    figures = [{"key": fig.key, "caption": fig.caption, "svg": Markup(fig.svg),
-                "img": _svg_data_img(fig.svg, fig.caption)} for fig in _figures_of(block)]
+    figures, law_figures = [], []
+    for fig in _figures_of(block):
+        item = {"key": fig.key, "caption": fig.caption, "svg": Markup(fig.svg),
+                "img": _svg_data_img(fig.svg, fig.caption), "block": key,
+                "block_href": links.anchor(key)}
+        # Material-law plots belong to the materials appendix, not to the block.
+        (law_figures if fig.key.endswith(LAW_FIGURE_SUFFIX) else figures).append(item)
     return {"key": key, "id": block.id, "title": block.spec.title, "kind": block.kind.name,
             "kind_title": block.kind.title, "method": method, "inputs": inputs,
             "steps": steps, "results": results, "checks": checks, "notes": notes,
-            "warnings": warnings, "figures": figures, "caution": block.kind.caution,
+            "warnings": warnings, "figures": figures, "law_figures": law_figures,
+            "caution": block.kind.caution,
             "block_notes": notes_html(block.spec.notes),
             "comments": comments_on.get(key, []), "passed": block.passed,
             "failed": sum(1 for c in checks if not c["passed"]),
             "series": list(out.series)}
+
+
+LAW_FIGURE_SUFFIX = "-laws"
+_MATERIAL_COLUMNS = (("conductivity", "W/(m*K)"), ("density", "kg/m^3"),
+                     ("specific_heat", "J/(kg*K)"), ("emissivity", "1"))
+
+
+def _materials_view(package, cites: "Citations", links) -> list[dict]:
+    """Return every library material the package uses, with its properties, source and users."""
+    used: dict[str, list[str]] = {}
+    for sheet in package.sheets:
+        for block in sheet.blocks:
+            for record in block.inputs:
+                if record.origin == "material" and block.key not in used.setdefault(
+                        record.si, []):
+                    used[record.si].append(block.key)
+    rows = []
+    for name in sorted(used):
+        entry = package.project.materials.get(name, {})
+        properties = {column: format_quantity(entry[column], unit, None, 3)
+                      for column, unit in _MATERIAL_COLUMNS if column in entry}
+        rows.append({"name": name, "title": entry.get("title", name),
+                     "properties": properties, "law": entry.get("law", ""),
+                     "file": entry.get("file", ""),
+                     "cite": cites.cite(entry.get("source", ""), "materials"),
+                     "used_in": [{"key": k, "href": links.anchor(k)} for k in used[name]]})
+    return rows
 
 
 def _figures_of(block) -> list:
@@ -296,6 +329,12 @@ def package_view(package, target: str = "site") -> dict:
         sheet["next"] = sheets[i + 1] if i + 1 < len(sheets) else None
     revision = project.revision
     all_checks = [c for s in sheets for c in s["checks"]]
+    materials = _materials_view(package, cites, links)
+    law_figures: dict[str, dict] = {}  # the same law in several blocks is plotted once
+    for f in (f for s in sheets for b in s["blocks"] for f in b["law_figures"]):
+        entry = law_figures.setdefault(f["caption"], {**f, "used_in": []})
+        entry["used_in"].append({"key": f["block"], "href": f["block_href"]})
+    law_figures = list(law_figures.values())
     references = cites.listing()
     for r in references:
         r["uses"] = [{"key": key, "href": links.anchor(key)} for key in r["uses"]]
@@ -320,6 +359,9 @@ def package_view(package, target: str = "site") -> dict:
         "comment_log_href": links.index("comment-log"),
         "open_comments": sum(1 for c in comments if c["status"] == "open"),
         "reviewer": project.reviewer,
+        "materials": materials,
+        "law_figures": law_figures,
+        "materials_href": links.index("materials"),
         "caution": CAUTION,
         "target": target,
     }
