@@ -629,7 +629,7 @@ def wall_figures(block) -> list[Figure]:
     with figure(block.key + "-profile", 160, 85) as (fig, ax):
         for j, (x0, x1) in enumerate(zip(edges[:-1], edges[1:])):
             bridge = data["bridges"][j]
-            hatch = "xx" if bridge else ("////" if j % 2 else None)
+            hatch = "x" if bridge else ("//" if j % 2 else None)
             ax.axvspan(x0, x1, facecolor="#ebebeb" if j % 2 else "#ffffff", edgecolor="#777777",
                        hatch=hatch, linewidth=0.6, zorder=0)
             ax.annotate(str(j + 1), xy=((x0 + x1) / 2, 1.0), xycoords=("data", "axes fraction"),

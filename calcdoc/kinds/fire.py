@@ -443,12 +443,12 @@ def _compute_fire_curve(inp, out):
 
 
 def _figures_fire_curve(block):
-    from calcdoc.render.plots import LINE_STYLES, figure, mark_vertical, svg_of
+    from calcdoc.render.plots import LINE_STYLES, figure, mark_vertical, svg_of, thin
     data = block.output.figure_data["fire"]
     minutes = np.asarray(data["time"]) / 60.0
     celsius = np.asarray(data["temperature"]) - 273.15
     with figure(block.key + "-fire-curve") as (fig, ax):
-        ax.plot(minutes, celsius, color="#b03a2e", linestyle=LINE_STYLES[0],
+        ax.plot(*thin(minutes, celsius), color="#b03a2e", linestyle=LINE_STYLES[0],
                 label=f"gas temperature θg ({data['name']})")
         if data["t_max"] is not None and data["t_max"] <= data["duration"]:
             mark_vertical(ax, data["t_max"] / 60.0, "peak, t_max")
@@ -742,13 +742,13 @@ def _compute_steel(inp, out):
 
 def _figures_steel(block):
     from calcdoc.render.plots import (LINE_STYLES, figure, mark_horizontal, mark_vertical,
-                                      svg_of)
+                                      svg_of, thin)
     data = block.output.figure_data["steel"]
     minutes = np.asarray(data["time"]) / 60.0
     with figure(block.key + "-steel") as (fig, ax):
-        ax.plot(minutes, np.asarray(data["gas"]) - 273.15, color="#b03a2e",
+        ax.plot(*thin(minutes, np.asarray(data["gas"]) - 273.15), color="#b03a2e",
                 linestyle=LINE_STYLES[0], label=f"gas θg ({data['fire']})")
-        ax.plot(minutes, np.asarray(data["steel"]) - 273.15, color="#1f3b73",
+        ax.plot(*thin(minutes, np.asarray(data["steel"]) - 273.15), color="#1f3b73",
                 linestyle=LINE_STYLES[1], label="steel θa"
                 + (" (protected)" if data["protected"] else " (unprotected)"))
         mark_horizontal(ax, data["theta_critical"] - 273.15,

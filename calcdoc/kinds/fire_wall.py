@@ -522,11 +522,12 @@ def _figure_profiles(block, data):
 
 
 def _figure_unexposed(block, data):
-    from calcdoc.render.plots import LINE_STYLES, figure, mark_horizontal, mark_vertical, svg_of
+    from calcdoc.render.plots import (LINE_STYLES, figure, mark_horizontal, mark_vertical,
+                                      svg_of, thin)
     minutes = np.asarray(data["times"]) / 60.0
     initial = data["initial"] - ZERO_CELSIUS
     with figure(block.key + "-unexposed") as (fig, ax):
-        ax.plot(minutes, np.asarray(data["unexposed"]) - ZERO_CELSIUS, color="#1f3b73",
+        ax.plot(*thin(minutes, np.asarray(data["unexposed"]) - ZERO_CELSIUS), color="#1f3b73",
                 linestyle=LINE_STYLES[0], label="unexposed face θ")
         if data["decay_from"] is None:
             mark_horizontal(ax, initial + data["limit"],
@@ -563,7 +564,7 @@ def _figure_unexposed(block, data):
 
 
 def _figure_histories(block, data):
-    from calcdoc.render.plots import LINE_STYLES, COLOURS, figure, svg_of
+    from calcdoc.render.plots import LINE_STYLES, COLOURS, figure, svg_of, thin
     minutes = np.asarray(data["times"]) / 60.0
     with figure(block.key + "-histories") as (fig, ax):
         lines = [("held surface temperature" if data["held"] else f"gas θg ({data['fire']})",
@@ -572,7 +573,8 @@ def _figure_histories(block, data):
                   for m in data["monitors"]]
         lines.append(("unexposed face", data["unexposed"]))
         for n, (label, values) in enumerate(lines):
-            ax.plot(minutes, np.asarray(values) - ZERO_CELSIUS, color=COLOURS[n % len(COLOURS)],
+            ax.plot(*thin(minutes, np.asarray(values) - ZERO_CELSIUS),
+                    color=COLOURS[n % len(COLOURS)],
                     linestyle=LINE_STYLES[n % len(LINE_STYLES)], label=label)
         ax.set_xlabel("time t [min]")
         ax.set_ylabel("temperature θ [°C]")
@@ -590,7 +592,7 @@ def material_law_figure(key: str, curves: list[dict]) -> Figure:
     ``curves`` holds plain data as produced for a block's figure data (label, theta [°C],
     conductivity [W/(m·K)], specific_heat [J/(kg·K)], density [kg/m³], source).
     """
-    from calcdoc.render.plots import LINE_STYLES, COLOURS, figure, svg_of
+    from calcdoc.render.plots import LINE_STYLES, COLOURS, figure, svg_of, thin
     with figure(key, height_mm=62) as (fig, ax):
         fig.delaxes(ax)
         axes = fig.subplots(1, 3)
@@ -598,7 +600,7 @@ def material_law_figure(key: str, curves: list[dict]) -> Figure:
                   ("density", "ρ [kg/m³]"))
         for axis, (name, ylabel) in zip(axes, panels):
             for n, curve in enumerate(curves):
-                axis.plot(curve["theta"], curve[name], color=COLOURS[n % len(COLOURS)],
+                axis.plot(*thin(curve["theta"], curve[name]), color=COLOURS[n % len(COLOURS)],
                           linestyle=LINE_STYLES[n % len(LINE_STYLES)], label=curve["label"])
             axis.set_xlabel("θ [°C]")
             axis.set_ylabel(ylabel)

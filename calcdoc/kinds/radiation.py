@@ -7,6 +7,7 @@ each step with its numbers substituted, and draws the two radiant-exposure pictu
 
 from __future__ import annotations
 
+import functools
 import re
 
 import numpy as np
@@ -14,8 +15,8 @@ import numpy as np
 from calcdoc.kinds.base import (ABSOLUTE, REQUIRED, Choice, Figure, Items, Kind, Quantity, Record,
                                 ResultSpec, Text)
 from calcdoc.physics import PhysicsRangeError
-from calcdoc.physics.exposure import (Emitter, flux_against_separation, incident_flux,
-                                      minimum_separation, worst_point)
+from calcdoc.physics.exposure import (Emitter, MinimumSeparation, flux_against_separation,
+                                      incident_flux, minimum_separation, worst_point)
 from calcdoc.physics.radiation import (STEFAN_BOLTZMANN, emissive_power,
                                        enclosed_body_exchange, net_flux_to_surroundings,
                                        parallel_plates_exchange, two_surface_enclosure_exchange)
@@ -529,6 +530,14 @@ def _emitter_path(quantity: str) -> str:
     return f"emitters[{int(match.group(1)) - 1}]{match.group(2) or '.x'}"
 
 
+@functools.lru_cache(maxsize=64)
+def _minimum_separation(emitters: tuple[Emitter, ...], limit: float,
+                        receiver: tuple[float, float] | None) -> MinimumSeparation:
+    """``minimum_separation``, remembered: it does not depend on the block's separation, and a
+    sheet often checks the same openings against the same limit at several separations."""
+    return minimum_separation(list(emitters), limit, receiver)
+
+
 def _radiant_exposure(inp, out):
     emitters, names = [], []
     for k, item in enumerate(inp.emitters):
@@ -596,7 +605,7 @@ def _radiant_exposure(inp, out):
                  q / limit, "1", label="Utilisation of the limit flux")
         out.result("utilisation", q / limit)
         receiver = None if inp.receiver is None else (px, py)
-        minimum = minimum_separation(emitters, limit, receiver)
+        minimum = _minimum_separation(tuple(emitters), float(limit), receiver)
         out.step(r"s_{\min}",
                  r"\min\left\{s_{0} : q(s) \le q_{\mathrm{limit}}\ \forall s \ge s_{0}\right\}",
                  rf"\min\left\{{s_{{0}} : q(s) \le {out.q(limit, W_M2, 'kW/m^2')}\ "
@@ -627,9 +636,10 @@ def _radiant_exposure(inp, out):
              "absorption by the air, no flame projecting beyond the openings and no shielding "
              "are taken into account.", f"{HOWELL}, case B-3")
 
-    # Figure data (plain numbers): the flux against separation around the design separation.
+    # Figure data (plain numbers): the flux against separation around the design separation,
+    # closer together near the emitters, where the flux bends most.
     reach = max(2.0 * s, 1.4 * minimum.separation if minimum is not None else 0.0)
-    separations = np.linspace(reach / 30.0, reach, 30)
+    separations = np.geomspace(reach / 30.0, reach, 30)
     receiver = None if inp.receiver is None else (px, py)
     out.figure_data["exposure"] = {
         "emitters": [(name, e.x, e.y, e.width, e.height, e.emissive_power)
@@ -645,14 +655,14 @@ def _radiant_exposure(inp, out):
 def _exposure_figures(block) -> list[Figure]:
     from matplotlib.patches import Rectangle
 
-    from calcdoc.render.plots import COLOURS, figure, mark_horizontal, mark_vertical, svg_of
+    from calcdoc.render.plots import (COLOURS, HATCHES, figure, mark_horizontal, mark_vertical,
+                                      svg_of, thin)
 
     data = block.output.figure_data.get("exposure")
     if not data:
         return []
     sig = block.output.precision
     figures = []
-    hatches = ("//", "\\\\", "xx", "..", "++", "--")
     x_all = [e[1] for e in data["emitters"]] + [e[1] + e[3] for e in data["emitters"]]
     y_all = [e[2] for e in data["emitters"]] + [e[2] + e[4] for e in data["emitters"]]
     px, py = data["point"]
@@ -664,7 +674,7 @@ def _exposure_figures(block) -> list[Figure]:
     with figure(block.key + "-elevation", 160, height_mm) as (fig, ax):
         for k, (name, x, y, w, h, _power) in enumerate(data["emitters"]):
             ax.add_patch(Rectangle((x, y), w, h, facecolor="#f6e0d3", edgecolor="#000000",
-                                   hatch=hatches[k % len(hatches)], linewidth=0.9))
+                                   hatch=HATCHES[k % len(HATCHES)], linewidth=0.9))
             ax.text(x + w / 2, y + h / 2, name, ha="center", va="center", fontsize=7.5,
                     bbox={"facecolor": "white", "edgecolor": "none", "pad": 1.0})
         label = "worst point" if data["worst"] else "receiver point"
@@ -689,7 +699,7 @@ def _exposure_figures(block) -> list[Figure]:
     separations = np.array(data["separations"])
     flux = np.array(data["flux"]) / 1000.0
     with figure(block.key + "-flux", 160, 80) as (fig, ax):
-        ax.plot(separations, flux, color=COLOURS[0], linestyle="-",
+        ax.plot(*thin(separations, flux), color=COLOURS[0], linestyle="-",
                 label=f"incident flux at the {'worst point' if data['worst'] else 'receiver'}")
         ax.plot([data["separation"]], [data["q"] / 1000.0], marker="o", color=COLOURS[0],
                 linestyle="none", label="design separation")

@@ -19,7 +19,6 @@ from numpy.typing import ArrayLike
 from scipy.optimize import brentq, minimize, minimize_scalar
 
 from calcdoc.physics import PhysicsRangeError
-from calcdoc.physics.viewfactors import _corner_factor
 
 __all__ = [
     "Emitter",
@@ -127,25 +126,63 @@ def _separation(value: float) -> float:
     return s
 
 
+def _corner_sums(right, left, above, below, want_slopes: bool = False):
+    """Sum of the four signed case B-3 corner factors at dimensionless distances to the edges.
+
+    ``right``, ``left``, ``above``, ``below`` are the distances from the foot point to the
+    emitter's edges divided by the separation (negative beyond an edge); they broadcast, so a
+    grid passes its columns and rows separately and the square roots are taken once per column
+    and per row. The same sum as ``viewfactors._corner_factor`` over the four corners (Howell
+    case B-3 by superposition), arranged for speed: the corners share their square roots, and
+    each pair of arctangents with a common root is one ``arctan2`` by the addition formula
+    arctan(p/r) + arctan(q/r) = arg((r + ip)(r + iq)) (r > 0, so no branch is crossed). With
+    ``want_slopes`` the partial derivatives of the sum in each of the four distances are
+    returned as well (d/d right, d/d left, d/d above, d/d below), reusing the same arctangents.
+    """
+    width = right + left
+    height = above + below
+    r2_right = 1.0 + right * right
+    r2_left = 1.0 + left * left
+    r2_above = 1.0 + above * above
+    r2_below = 1.0 + below * below
+    root_right = np.sqrt(r2_right)
+    root_left = np.sqrt(r2_left)
+    root_above = np.sqrt(r2_above)
+    root_below = np.sqrt(r2_below)
+    vertical = above * below
+    horizontal = right * left
+    # Σ_v arctan(v / r_u) for u = right, left; Σ_u arctan(u / r_v) for v = above, below
+    t_right = np.arctan2(root_right * height, r2_right - vertical)
+    t_left = np.arctan2(root_left * height, r2_left - vertical)
+    t_above = np.arctan2(root_above * width, r2_above - horizontal)
+    t_below = np.arctan2(root_below * width, r2_below - horizontal)
+    total = (right / root_right * t_right + left / root_left * t_left
+             + above / root_above * t_above + below / root_below * t_below) / (2.0 * np.pi)
+    if not want_slopes:
+        return total
+    # d/dA of the B-3 factor is [arctan(B/r)/r³ + B/(r²(r² + B²))]/(2π), r² = 1 + A²
+    above2, below2 = above * above, below * below
+    d_ra = 1.0 / (r2_right + above2)
+    d_rb = 1.0 / (r2_right + below2)
+    d_la = 1.0 / (r2_left + above2)
+    d_lb = 1.0 / (r2_left + below2)
+    slope_right = (t_right / (r2_right * root_right) + (above * d_ra + below * d_rb) / r2_right)
+    slope_left = (t_left / (r2_left * root_left) + (above * d_la + below * d_lb) / r2_left)
+    slope_above = (t_above / (r2_above * root_above) + (right * d_ra + left * d_la) / r2_above)
+    slope_below = (t_below / (r2_below * root_below) + (right * d_rb + left * d_lb) / r2_below)
+    scale = 1.0 / (2.0 * np.pi)
+    return (total, slope_right * scale, slope_left * scale, slope_above * scale,
+            slope_below * scale)
+
+
 def _flux(packed: _Emitters, separation: float, x: np.ndarray, y: np.ndarray) -> np.ndarray:
     """Incident flux at foot points (x, y), broadcast, without re-checking the input."""
-    x = np.asarray(x, dtype=float)[..., None]
-    y = np.asarray(y, dtype=float)[..., None]
-    left = x - packed.x
-    right = packed.x + packed.width - x
-    below = y - packed.y
-    above = packed.y + packed.height - y
-    c = separation
-    factor = (_corner_factor(right, above, c) + _corner_factor(left, above, c)
-              + _corner_factor(right, below, c) + _corner_factor(left, below, c))
+    x = np.asarray(x, dtype=float)[..., None] / separation
+    y = np.asarray(y, dtype=float)[..., None] / separation
+    x_left, x_right = packed.x / separation, (packed.x + packed.width) / separation
+    y_below, y_above = packed.y / separation, (packed.y + packed.height) / separation
+    factor = _corner_sums(x_right - x, x - x_left, y_above - y, y - y_below)
     return np.sum(factor * packed.emissive_power, axis=-1)
-
-
-def _corner_slope(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """d/dA of the dimensionless case B-3 factor at (A, B); by symmetry d/dB is (B, A)."""
-    p2 = 1.0 + a * a
-    return (np.arctan(b / np.sqrt(p2)) / (p2 * np.sqrt(p2)) + b / (p2 * (p2 + b * b))) / (
-        2.0 * np.pi)
 
 
 def _flux_and_gradient(packed: _Emitters, separation: float,
@@ -157,14 +194,10 @@ def _flux_and_gradient(packed: _Emitters, separation: float,
     below = (point[1] - packed.y) / c
     above = (packed.y + packed.height - point[1]) / c
     power = packed.emissive_power
-    flux = np.sum(power * (_corner_factor(right, above, 1.0) + _corner_factor(left, above, 1.0)
-                           + _corner_factor(right, below, 1.0)
-                           + _corner_factor(left, below, 1.0)))
-    d_x = (-_corner_slope(right, above) + _corner_slope(left, above)
-           - _corner_slope(right, below) + _corner_slope(left, below))
-    d_y = (-_corner_slope(above, right) - _corner_slope(above, left)
-           + _corner_slope(below, right) + _corner_slope(below, left))
-    return float(flux), np.array([np.sum(power * d_x), np.sum(power * d_y)]) / c
+    factor, d_right, d_left, d_above, d_below = _corner_sums(right, left, above, below, True)
+    # right and above fall, left and below grow as the point moves by +x, +y
+    gradient = np.array([power @ (d_left - d_right), power @ (d_below - d_above)]) / c
+    return float(power @ factor), gradient
 
 
 def incident_flux(emitters: Sequence[Emitter], separation: float, x: ArrayLike,
@@ -228,8 +261,9 @@ def _search(packed: _Emitters, separation: float, margin: float, starts: int) ->
     step = 0.5 * min(separation, float(packed.width.min()), float(packed.height.min()))
     nx = int(np.clip(math.ceil((bounds[0][1] - bounds[0][0]) / step) + 1, 21, 161))
     ny = int(np.clip(math.ceil((bounds[1][1] - bounds[1][0]) / step) + 1, 21, 161))
-    gx, gy = np.meshgrid(np.linspace(*bounds[0], nx), np.linspace(*bounds[1], ny))
-    grid = _flux(packed, separation, gx, gy)
+    xs = np.linspace(*bounds[0], nx)
+    ys = np.linspace(*bounds[1], ny)
+    grid = _flux(packed, separation, xs[None, :], ys[:, None])  # columns and rows broadcast
     # Start from distinct peaks: grid points not below any of their eight neighbours ...
     padded = np.pad(grid, 1, constant_values=-np.inf)
     peak = np.ones(grid.shape, dtype=bool)
@@ -238,8 +272,9 @@ def _search(packed: _Emitters, separation: float, margin: float, starts: int) ->
             if di or dj:
                 peak &= grid >= padded[1 + di:1 + di + ny, 1 + dj:1 + dj + nx]
     # ... and the centre of each emitter, which is that emitter's own maximum.
-    cx = np.concatenate([gx[peak], packed.x + 0.5 * packed.width])
-    cy = np.concatenate([gy[peak], packed.y + 0.5 * packed.height])
+    rows, columns = np.nonzero(peak)
+    cx = np.concatenate([xs[columns], packed.x + 0.5 * packed.width])
+    cy = np.concatenate([ys[rows], packed.y + 0.5 * packed.height])
     values = np.concatenate([grid[peak], _flux(packed, separation, cx[-len(packed.x):],
                                                 cy[-len(packed.x):])])
     order = np.argsort(values, kind="stable")[::-1][:starts]
@@ -417,12 +452,15 @@ def minimum_separation(emitters: Sequence[Emitter], limit: float,
     separations from 10⁻⁴ of that bound up to it are scanned on a geometric grid to bracket the
     last crossing of the limit (the flux at a point beside the openings first rises with
     separation, then falls), and the crossing is then located by Brent's method (scipy
-    ``brentq``), not by stepping. For a given point whose flux never exceeds the limit on the
-    scan, the peak of the scan is refined by a bounded scalar search before 0 is returned. If
-    the worst-point flux is already below the limit at the first scanned separation, that
-    separation (10⁻⁴ of the bound) is returned as a conservative answer. Assumptions as in
-    :func:`incident_flux`; the limit (for example a piloted ignition flux) and its source
-    belong to the caller.
+    ``brentq``), not by stepping. For the worst point the scan runs from the far end and stops
+    at the first separation above the limit (only the last crossing matters), trying the
+    emitters' centres before the global search there (a point above the limit proves the worst
+    point is), and no separation is searched twice. For a given point whose flux never exceeds
+    the limit on the scan, the peak of the scan is refined by a bounded scalar search before 0
+    is returned. If the worst-point flux is already below the limit at the first scanned
+    separation, that separation (10⁻⁴ of the bound) is returned as a conservative answer.
+    Assumptions as in :func:`incident_flux`; the limit (for example a piloted ignition flux) and
+    its source belong to the caller.
 
     Examples
     --------
@@ -455,30 +493,55 @@ def minimum_separation(emitters: Sequence[Emitter], limit: float,
     upper_bound = math.sqrt(power / (math.pi * q_limit))
     separations = np.geomspace(1e-4 * upper_bound, upper_bound, int(scan_points))
 
-    def excess_at(s: float) -> float:
-        return _governing(packed, s, point).q - q_limit
+    governing: dict[float, WorstPoint] = {}  # each separation searched once
 
-    excess = np.array([excess_at(s) for s in separations])
-    above = np.flatnonzero(excess > 0.0)
-    if above.size:
-        last = int(above[-1])
+    def governing_at(s: float) -> WorstPoint:
+        found = governing.get(s)
+        if found is None:
+            found = governing[s] = _governing(packed, s, point)
+        return found
+
+    def excess_at(s: float) -> float:
+        return governing_at(s).q - q_limit
+
+    if point is None:
+        # Only the last scanned separation above the limit brackets the answer, so scan from
+        # the far end and stop at the first one above it. Any point above the limit proves that
+        # the worst point is, so the emitters' centres are tried before the global search.
+        centre_x = packed.x + 0.5 * packed.width
+        centre_y = packed.y + 0.5 * packed.height
+        last = -1
+        for index in range(len(separations) - 1, -1, -1):
+            s = float(separations[index])
+            if (float(np.max(_flux(packed, s, centre_x, centre_y))) > q_limit
+                    or excess_at(s) > 0.0):
+                last = index
+                break
+        if last < 0:
+            s = float(separations[0])
+            found = governing_at(s)
+            return MinimumSeparation(s, False, found.x, found.y, found.q)
         lower = float(separations[last])
         # the bound makes the last scanned separation safe; doubling it is safer still
         upper = float(separations[last + 1]) if last + 1 < len(separations) else 2.0 * lower
-    elif point is None:
-        s = float(separations[0])
-        found = _governing(packed, s, point)
-        return MinimumSeparation(s, False, found.x, found.y, found.q)
     else:
-        peak = int(np.argmax(excess))
-        left = float(separations[max(peak - 1, 0)])
-        right = float(separations[min(peak + 1, len(separations) - 1)])
-        refined = minimize_scalar(lambda s: -excess_at(s), bounds=(left, right),
-                                  method="bounded", options={"xatol": 1e-9 * right})
-        peak_excess = max(-float(refined.fun), float(excess[peak]))
-        if peak_excess <= 0.0:
-            return MinimumSeparation(0.0, True, point[0], point[1], peak_excess + q_limit)
-        lower, upper = float(refined.x), right
+        excess = np.array([excess_at(float(s)) for s in separations])
+        above = np.flatnonzero(excess > 0.0)
+        if above.size:
+            last = int(above[-1])
+            lower = float(separations[last])
+            upper = (float(separations[last + 1]) if last + 1 < len(separations)
+                     else 2.0 * lower)
+        else:
+            peak = int(np.argmax(excess))
+            left = float(separations[max(peak - 1, 0)])
+            right = float(separations[min(peak + 1, len(separations) - 1)])
+            refined = minimize_scalar(lambda s: -excess_at(s), bounds=(left, right),
+                                      method="bounded", options={"xatol": 1e-9 * right})
+            peak_excess = max(-float(refined.fun), float(excess[peak]))
+            if peak_excess <= 0.0:
+                return MinimumSeparation(0.0, True, point[0], point[1], peak_excess + q_limit)
+            lower, upper = float(refined.x), right
     root = brentq(excess_at, lower, upper, xtol=1e-12 * upper_bound, rtol=1e-10)
-    found = _governing(packed, root, point)
+    found = governing_at(root)
     return MinimumSeparation(float(root), False, found.x, found.y, found.q)
