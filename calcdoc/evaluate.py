@@ -189,9 +189,13 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
     try:
         kind.compute(inp, out)
     except PhysicsRangeError as exc:
-        errors.append(InputError(_locate(exc, ctx.records, spec), spec.key,
-                                 f"{exc.quantity} is outside the range of the method",
-                                 exc.expected, _got(exc)))
+        if exc.value is None:  # a kind's input needed only for some choices is absent
+            errors.append(InputError(spec.loc, f"{spec.key}.inputs",
+                                     f"missing input '{exc.quantity}'", exc.expected, "nothing"))
+        else:
+            errors.append(InputError(_locate(exc, ctx.records, spec), spec.key,
+                                     f"{exc.quantity} is outside the range of the method",
+                                     exc.expected, _got(exc)))
         return None
     except InputError as err:
         errors.append(err)

@@ -168,3 +168,25 @@ def test_review_comment_on_unknown_block(tmp_path, capsys):
     assert err[0] == ("proj/review.yaml:3:5: error: review.comments.on: comment on unknown sheet "
                       "or block 'F1.lod' (expected an existing SHEET or SHEET.block, got 'F1.lod'); "
                       "hint: did you mean 'F1.load'?")
+
+
+def test_input_needed_only_for_one_configuration_is_named_when_missing(tmp_path, capsys):
+    sheet = """\
+id: R1
+title: Exchange
+blocks:
+  - id: x
+    kind: radiation_exchange
+    inputs:
+      configuration: general
+      temperature_1: 500 degC
+      temperature_2: 20 degC
+      emissivity_1: 0.9
+      emissivity_2: 0.9
+      area_1: 1 m^2
+      area_2: 4 m^2
+"""
+    status, err = run_build(tmp_path, capsys, {"r1": sheet})
+    assert status == 2
+    assert err[0] == ("proj/sheets/r1.yaml:4:5: error: R1.x.inputs: missing input 'view_factor' "
+                      "(expected view_factor for configuration general, got nothing)")

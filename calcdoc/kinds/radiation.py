@@ -141,7 +141,7 @@ SURFACE_EMISSION = Kind(
 
 
 def _refuse(name: str, value, expected: str):
-    raise PhysicsRangeError(name, "nothing" if value is None else value, expected)
+    raise PhysicsRangeError(name, value, expected)  # value None: the input is missing
 
 
 def _radiation_exchange(inp, out):
