@@ -23,8 +23,7 @@ The method, stated so that a checker can reproduce it:
   positive, so the maximum principle holds in every iterate) are taken from the previous iterate
   and the tridiagonal system is solved with scipy's LAPACK tridiagonal solver (``dgtsv``, the
   routine behind :func:`scipy.linalg.solve_banded` for one sub- and super-diagonal) until no
-  temperature
-  changes by more than ``tolerance``. A step that does not converge is split in two.
+  temperature changes by more than ``tolerance``. A step that does not converge is split in two.
 * **Boundaries.** Exposed face: gas at θg(t) with convection αc and radiation
   Φ εm εf σ (T_g⁴ − T_s⁴) (EN 1991-1-2 §3.1, eqs. 3.1–3.3, with the radiation temperature taken
   as the gas temperature), or a held surface temperature. Unexposed face: convection (4 W/(m²·K),
