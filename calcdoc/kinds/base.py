@@ -544,9 +544,14 @@ class MaterialField(Field):
                       did_you_mean(str(name), ctx.materials) if isinstance(name, str) else None)
             raise _Invalid
         entry = ctx.materials[name]
+        shown = entry.get("title", name)
+        if "conductivity" in entry:  # the property a reader checks first; the rest are listed
+            shown += f", λ = {format_quantity(entry['conductivity'], 'W/(m*K)', None, 3)}"
+        elif entry.get("law"):
+            shown += " (temperature-dependent law)"
         ctx.records.append(InputRecord(path, self.meaning or "material", name, name, "",
-                                       entry.get("title", name), entry.get("source", ""),
-                                       "material", loc=name_node.loc))
+                                       shown, entry.get("source", ""), "material",
+                                       loc=name_node.loc))
         return entry
 
 
