@@ -233,7 +233,7 @@ def _materials_view(package, cites: "Citations", links) -> list[dict]:
         rows.append({"name": name, "title": entry.get("title", name),
                      "properties": properties, "law": entry.get("law", ""),
                      "file": entry.get("file", ""),
-                     "cite": cites.cite(entry.get("source", ""), "materials"),
+                     "cite": [cites.cite(entry.get("source", ""), k) for k in used[name]][0],
                      "used_in": [{"key": k, "href": links.anchor(k)} for k in used[name]]})
     return rows
 
