@@ -144,7 +144,8 @@ _LAYER_FIELDS = (
     Choice("conductivity_limit", "EN 1992-1-2 concrete: conductivity limit of §3.3.3(2) "
            "(default lower)", default=None, options=("lower", "upper")),
     Quantity("moisture_content", "EN 1992-1-2 concrete: moisture content by weight, 0 to 3 % "
-             "(default 1.5 %; §3.3.2(2))", default=None, percent=True, at_least=0.0),
+             "(default 1.5 %; §3.3.2(2)); above 3 % a spalling warning, and the 3 % peak is "
+             "used", default=None, percent=True, at_least=0.0, less_than=1.0),
     Text("source", "where the layer's values come from", default=None),
 )
 
@@ -155,6 +156,9 @@ _MONITOR_FIELDS = (
 
 
 # ----------------------------------------------------------------------------- compute
+
+
+_MOISTURE_CAP = 0.03  # EN 1992-1-2 §3.3.2(2): the specific-heat peak is given up to 3 %
 
 
 def _layer_law(i: int, layer: dict, out) -> tuple[ThermalLaw, str]:
@@ -168,6 +172,15 @@ def _layer_law(i: int, layer: dict, out) -> tuple[ThermalLaw, str]:
     if law_name == _CONCRETE:
         limit = layer["conductivity_limit"] or "lower"
         u = _DEFAULT_MOISTURE if layer["moisture_content"] is None else layer["moisture_content"]
+        if u > _MOISTURE_CAP:
+            # §3.3.2(2) gives the peak only up to 3 %; more moisture only delays the unexposed
+            # face (a longer plateau near 100 °C), so taking the 3 % peak errs on the safe side.
+            out.warn(f"Layer {i + 1}: moisture content {100 * u:.3g} % is above 3 %: explosive "
+                     "spalling must be considered (EN 1992-1-2 §4.5.1(2)). The specific-heat "
+                     "peak is taken at its 3 % value (2020 J/(kg·K)), which shortens the "
+                     "insulation time compared with a wetter peak.",
+                     "EN 1992-1-2:2004 §3.3.2(2) and §4.5.1(2)")
+            u = _MOISTURE_CAP
         rho20 = _DEFAULT_DENSITY_20 if layer["density"] is None else layer["density"]
         defaults = [text for text, given in (
             ("lower-limit conductivity", layer["conductivity_limit"]),
