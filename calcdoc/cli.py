@@ -78,6 +78,10 @@ def cmd_kinds(args) -> int:
     from calcdoc.kinds import registry
     from calcdoc.project import load_named_values
     kinds = registry()
+    if args.schema:
+        from calcdoc.schema import sheet_schema
+        print(json.dumps(sheet_schema(), indent=1, ensure_ascii=False))
+        return 0
     if args.kind is None:
         print("Kinds:")
         for kind in kinds.values():
@@ -171,6 +175,8 @@ def parser() -> argparse.ArgumentParser:
     c.set_defaults(func=cmd_check)
     k = sub.add_parser("kinds", help="list kinds, or one kind's inputs and results")
     k.add_argument("kind", nargs="?")
+    k.add_argument("--schema", action="store_true",
+                   help="print the JSON Schema of a sheet file, generated from the kinds")
     k.set_defaults(func=cmd_kinds)
     n = sub.add_parser("new", help="write a small starter project")
     n.add_argument("dir")

@@ -54,3 +54,22 @@ def test_check_json_prints_results_json(tmp_path, capsys):
     doc = json.loads(capsys.readouterr().out)
     assert doc["format_version"] == 1
     assert not (folder / "build").exists()
+
+
+def test_sheet_schema_accepts_every_demo_sheet_and_refuses_a_typo(capsys):
+    # JSON Schema draft 2020-12 (an open standard), checked with the jsonschema library.
+    import jsonschema
+    import yaml
+    from pathlib import Path
+    assert main(["kinds", "--schema"]) == 0
+    schema = json.loads(capsys.readouterr().out)
+    jsonschema.Draft202012Validator.check_schema(schema)
+    validator = jsonschema.Draft202012Validator(schema)
+    sheets = sorted((Path(__file__).parent.parent / "projects/cold-store/sheets").glob("*.yaml"))
+    assert sheets
+    for path in sheets:
+        doc = json.loads(json.dumps(yaml.safe_load(path.read_text()), default=str))
+        assert list(validator.iter_errors(doc)) == [], path.name
+    bad = json.loads(json.dumps(yaml.safe_load(sheets[0].read_text()), default=str))
+    bad["blocks"][0]["titel"] = bad["blocks"][0].pop("title")
+    assert list(validator.iter_errors(bad))

@@ -214,6 +214,10 @@ class Field:
     def convert(self, node: Node, ctx: InputContext, path: str):
         raise NotImplementedError
 
+    def json_schema(self) -> dict:
+        """Return a JSON Schema for the value as written (the validator stays the authority)."""
+        return {"description": self.meaning}
+
 
 def _is_mapping_with(node: Node, key: str) -> bool:
     return node.is_map and key in node.value
@@ -303,6 +307,15 @@ class Quantity(Field):
         except UnitProblem as problem:
             ctx.error(node, path, problem.what, problem.expected, problem.got, problem.hint)
             raise _Invalid from None
+
+    def json_schema(self) -> dict:
+        written = [{"type": "string", "description": f"a quantity, e.g. '{self.example()}'"}]
+        if self.unit == "1" and not self.percent:
+            written.append({"type": "number"})
+        return {"description": f"{self.meaning} ({self.type_text()})", "anyOf": written + [
+            {"type": "object", "required": ["value"], "additionalProperties": False,
+             "properties": {"value": {"anyOf": written}, "source": {"type": "string"}}},
+            _REF_SCHEMA, _NAMED_SCHEMA]}
 
     def example(self) -> str:
         if self.temperature == ABSOLUTE:
@@ -422,6 +435,9 @@ class Choice(Field):
     def type_text(self) -> str:
         return "one of " + " | ".join(self.options)
 
+    def json_schema(self) -> dict:
+        return {"description": self.meaning, "enum": list(self.options)}
+
     def from_default(self, ctx, parent, path):
         ctx.records.append(InputRecord(path, self.meaning, str(self.default), self.default, "",
                                        str(self.default), self.source, "default", loc=parent.loc))
@@ -446,6 +462,9 @@ class Text(Field):
     def type_text(self) -> str:
         return "text"
 
+    def json_schema(self) -> dict:
+        return {"description": self.meaning, "type": ["string", "number"]}
+
     def convert(self, node, ctx, path):
         if not node.is_scalar or node.value is None:
             ctx.error(node, path, f"'{self.name}' is not text", "text", repr(plain(node)))
@@ -463,6 +482,9 @@ class Record(Field):
 
     def type_text(self) -> str:
         return "mapping of " + ", ".join(f.name for f in self.fields)
+
+    def json_schema(self) -> dict:
+        return {"description": self.meaning, **fields_schema(self.fields, self.exactly_one)}
 
     def describe(self) -> dict:
         d = super().describe()
@@ -488,6 +510,10 @@ class Items(Field):
 
     def type_text(self) -> str:
         return "list of {" + ", ".join(f.name for f in self.fields) + "}"
+
+    def json_schema(self) -> dict:
+        return {"description": self.meaning, "type": "array", "minItems": self.min_items,
+                "items": fields_schema(self.fields, self.exactly_one)}
 
     def describe(self) -> dict:
         d = super().describe()
@@ -535,6 +561,12 @@ class MaterialField(Field):
     def type_text(self) -> str:
         return "material name from the library"
 
+    def json_schema(self) -> dict:
+        return {"description": self.meaning, "anyOf": [
+            {"type": "string"},
+            {"type": "object", "required": ["material"], "additionalProperties": False,
+             "properties": {"material": {"type": "string"}}}]}
+
     def convert(self, node, ctx, path):
         name_node = node.value["material"] if _is_mapping_with(node, "material") else node
         name = name_node.value if name_node.is_scalar else None
@@ -566,6 +598,11 @@ class FreeMapping(Field):
     def type_text(self) -> str:
         return "mapping of NAME: quantity"
 
+    def json_schema(self) -> dict:
+        return {"description": self.meaning, "type": "object",
+                "additionalProperties": Quantity("value", "a quantity of any dimension",
+                                                 unit="1").json_schema()}
+
     def convert(self, node, ctx, path):
         if not node.is_map:
             ctx.error(node, path, f"'{self.name}' is not a mapping", self.type_text(),
@@ -581,6 +618,25 @@ class FreeMapping(Field):
         if failed:
             raise _Invalid
         return out
+
+
+_REF_SCHEMA = {"type": "object", "required": ["ref"], "additionalProperties": False,
+               "properties": {"ref": {"type": "string",
+                                      "pattern": r"^[A-Za-z0-9_-]+(\.[A-Za-z0-9_-]+){1,2}$"}}}
+_NAMED_SCHEMA = {"type": "object", "required": ["named"], "additionalProperties": False,
+                 "properties": {"named": {"type": "string"}}}
+
+
+def fields_schema(fields, exactly_one=()) -> dict:
+    """Return the JSON Schema of a mapping with these declared fields (unknown keys refused)."""
+    grouped = {name for group in exactly_one for name in group}
+    schema = {"type": "object", "additionalProperties": False,
+              "properties": {f.name: f.json_schema() for f in fields},
+              "required": [f.name for f in fields if f.required and f.name not in grouped]}
+    if exactly_one:
+        schema["allOf"] = [{"oneOf": [{"required": [name]} for name in group]}
+                           for group in exactly_one]
+    return schema
 
 
 def _describe_fields(fields, exactly_one=()) -> list[dict]:
