@@ -22,7 +22,7 @@ import nh3
 from markupsafe import Markup, escape
 
 from calcdoc import __version__
-from calcdoc.render.math import mathml, split_formula, svg_img
+from calcdoc.render.math import mathml, pdf_math, split_formula
 from calcdoc.units import format_quantity, latex_quantity
 
 __all__ = ["package_view", "render_site", "render_package_html", "environment", "TEMPLATES",
@@ -285,7 +285,7 @@ def package_view(package, target: str = "site") -> dict:
     if target not in ("site", "pdf"):
         raise ValueError(f"target must be site or pdf, got {target!r}")
     project = package.project
-    math = mathml if target == "site" else svg_img
+    math = mathml if target == "site" else pdf_math
     links = _Links(target)
     cites = Citations()
     current = project.revision.rev
