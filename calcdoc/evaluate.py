@@ -6,8 +6,8 @@ import math
 
 from calcdoc.errors import InputError, InputErrors, Location
 from calcdoc.kinds import get_kind
-from calcdoc.kinds.base import (ABSOLUTE, BlockOutput, InputContext, Quantity, ResolvedRef,
-                                _Invalid, convert_fields, did_you_mean)
+from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, BlockOutput, InputContext, Quantity,
+                                ResolvedRef, _Invalid, convert_fields, did_you_mean)
 from calcdoc.located import Node
 from calcdoc.model import (BlockSpec, CheckResult, EvaluatedBlock, EvaluatedSheet, Package,
                            Project)
@@ -280,17 +280,19 @@ def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
     if declared.temperature != ABSOLUTE and limit > 0 and value is not None:
         utilisation = value / limit if check.relation == "at_most" else (
             limit / value if value > 0 else math.inf)
-    value_text = format_quantity(value, declared.unit, shown, sig)
-    limit_text = format_quantity(limit, declared.unit, shown, sig)
+    difference = declared.temperature == DIFFERENCE
+    value_text = format_quantity(value, declared.unit, shown, sig, difference)
+    limit_text = format_quantity(limit, declared.unit, shown, sig, difference)
     while value_text == limit_text and value != limit and sig < 12:
         sig += 1
-        value_text = format_quantity(value, declared.unit, shown, sig)
-        limit_text = format_quantity(limit, declared.unit, shown, sig)
+        value_text = format_quantity(value, declared.unit, shown, sig, difference)
+        limit_text = format_quantity(limit, declared.unit, shown, sig, difference)
     margin_unit = "K" if declared.temperature else declared.unit
     margin_shown = ("delta_degF" if project.units == "US" else "K") if declared.temperature \
         else shown
     return CheckResult(check.result, check.relation, value, limit, declared.unit, margin,
                        utilisation, passed, source, value_text, limit_text,
-                       format_quantity(margin, margin_unit, margin_shown, sig))
+                       format_quantity(margin, margin_unit, margin_shown, sig,
+                                       difference=bool(declared.temperature)))
 
 

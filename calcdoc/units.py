@@ -307,19 +307,23 @@ def latex_number(value: float, sig: int = 3) -> str:
     return text
 
 
-def _kelvin_sig(value: float, unit: str, sig: int) -> int:
-    # An absolute temperature in kelvin has three integer digits: show it to 0.01 K.
-    # (Differences of a few hundred kelvin occur in fire; absolute temperatures below 200 K do
-    # not occur in building work.)
-    return max(sig, 5) if unit in ("K", "kelvin") and abs(value) >= 200 else sig
+def _kelvin_sig(value: float, unit: str, sig: int, difference: bool = False) -> int:
+    # An absolute temperature in kelvin has three integer digits: show it to 0.01 K. Callers
+    # that know they hold a difference say so; absolute temperatures below 200 K do not occur
+    # in building work, so smaller values in K are read as differences.
+    if difference or unit not in ("K", "kelvin"):
+        return sig
+    return max(sig, 5) if abs(value) >= 200 else sig
 
 
 def format_quantity(value_si: float, si_unit: str, display_unit: str | None = None,
-                    sig: int = 3) -> str:
-    """Return '0.273 W/(m²·K)' for a value held in ``si_unit``, shown in ``display_unit``."""
+                    sig: int = 3, difference: bool = False) -> str:
+    """Return '0.273 W/(m²·K)' for a value held in ``si_unit``, shown in ``display_unit``.
+
+    ``difference``: the value is a temperature difference (never shown to 0.01 K)."""
     unit = display_unit or si_unit
     value = convert(value_si, si_unit, unit)
-    sig = _kelvin_sig(value, unit, sig)
+    sig = _kelvin_sig(value, unit, sig, difference)
     shown = pretty_unit(unit)
     number = format_number(value, sig)
     if not shown:
@@ -330,11 +334,11 @@ def format_quantity(value_si: float, si_unit: str, display_unit: str | None = No
 
 
 def latex_quantity(value_si: float, si_unit: str, display_unit: str | None = None,
-                   sig: int = 3) -> str:
+                   sig: int = 3, difference: bool = False) -> str:
     """Return the quantity as LaTeX with a thin space between number and unit."""
     unit = display_unit or si_unit
     value = convert(value_si, si_unit, unit)
-    number = latex_number(value, _kelvin_sig(value, unit, sig))
+    number = latex_number(value, _kelvin_sig(value, unit, sig, difference))
     lu = latex_unit(unit)
     if value < 0:
         number = f"({number})" if not lu else number

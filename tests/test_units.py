@@ -89,3 +89,10 @@ def test_us_display_units__u_value_in_btu():
     assert format_quantity(294.15, "K", display_unit_for("K", None, "absolute", "US")) == "69.8 °F"
     # 100 mm = 3.94 in (1 in = 25.4 mm exactly, NIST SP 811 B.9)
     assert format_quantity(0.1, "m", display_unit_for("m", "mm", None, "US")) == "3.94 in"
+
+
+def test_a_temperature_difference_is_never_shown_to_hundredths():
+    # An absolute temperature in kelvin is shown to 0.01 K (294.15 K); a 200 K rise is not.
+    assert format_quantity(294.15, "K") == "294.15 K"
+    assert format_quantity(200.0, "K", difference=True) == "200 K"
+    assert format_quantity(140.0, "K") == "140 K"

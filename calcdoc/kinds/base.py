@@ -341,7 +341,8 @@ class Quantity(Field):
             not written_unit and shown == self.unit) else None
         ctx.records.append(InputRecord(
             path=path, meaning=self.meaning, written=written, si=value, si_unit=self.unit,
-            display=as_written or format_quantity(value, self.unit, shown, ctx.precision),
+            display=as_written or format_quantity(value, self.unit, shown, ctx.precision,
+                                                  self.temperature == DIFFERENCE),
             source=source, origin=origin, ref=ref, loc=loc))
 
     def convert(self, node: Node, ctx: InputContext, path: str):
@@ -757,13 +758,16 @@ class BlockOutput:
     def spec(self, name: str) -> ResultSpec:
         return self._specs[name]
 
-    def q(self, value_si: float, si_unit: str, display_unit: str | None = None) -> str:
-        """Return the value as LaTeX in the display unit (absolute K shown as °C by default)."""
-        return latex_quantity(value_si, si_unit, display_unit, self.precision)
+    def q(self, value_si: float, si_unit: str, display_unit: str | None = None,
+          difference: bool = False) -> str:
+        """Return the value as LaTeX in the display unit; ``difference`` for a temperature
+        difference in K (an absolute temperature in K is shown to 0.01 K)."""
+        return latex_quantity(value_si, si_unit, display_unit, self.precision, difference)
 
-    def qt(self, value_si: float, si_unit: str, display_unit: str | None = None) -> str:
+    def qt(self, value_si: float, si_unit: str, display_unit: str | None = None,
+           difference: bool = False) -> str:
         """Return the value as plain text for notes, e.g. '0.273 W/(m²·K)'."""
-        return format_quantity(value_si, si_unit, display_unit, self.precision)
+        return format_quantity(value_si, si_unit, display_unit, self.precision, difference)
 
     def result(self, name: str, value, unit: str | None = None, meaning: str = "",
                temperature: str | None = None, display: str | None = None):
@@ -775,12 +779,14 @@ class BlockOutput:
             spec = ResultSpec(name, unit, meaning, temperature, display)
             self._specs[name] = spec
         shown = self.display_overrides.get(name) or spec.display_unit(self.unit_system)
+        difference = spec.temperature == DIFFERENCE
         if isinstance(value, (list, tuple)):
             value = [float(v) for v in value]
-            text = ", ".join(format_quantity(v, spec.unit, shown, self.precision) for v in value)
+            text = ", ".join(format_quantity(v, spec.unit, shown, self.precision, difference)
+                             for v in value)
         else:
             value = float(value)
-            text = format_quantity(value, spec.unit, shown, self.precision)
+            text = format_quantity(value, spec.unit, shown, self.precision, difference)
         self.results[name] = ResultValue(spec, value, text)
 
     def not_reached(self, name: str, why: str):

@@ -305,14 +305,14 @@ def _compute_wall(inp, out):
         decay_from = float(fire.t_max)
         if inp.decay_insulation_rise is None:
             decay_rise = _DECAY_DEFAULT
-            out.note(f"Decay-phase insulation limit {out.qt(decay_rise, 'K')} after the gas peak "
+            out.note(f"Decay-phase insulation limit {out.qt(decay_rise, 'K', difference=True)} after the gas peak "
                      f"at {out.qt(decay_from, 's', 'min')} (default).", _DECAY_SOURCE)
         else:
             decay_rise = float(inp.decay_insulation_rise)
-            out.note(f"Decay-phase insulation limit {out.qt(decay_rise, 'K')} after the gas peak "
+            out.note(f"Decay-phase insulation limit {out.qt(decay_rise, 'K', difference=True)} after the gas peak "
                      f"at {out.qt(decay_from, 's', 'min')} (stated).",
                      "EN 1991-1-2:2002 §2.1.3 (nationally determined parameter)")
-        out.note(f"Insulation limit {out.qt(inp.insulation_rise, 'K')} until the gas peak.",
+        out.note(f"Insulation limit {out.qt(inp.insulation_rise, 'K', difference=True)} until the gas peak.",
                  "EN 1991-1-2:2002 §2.1.3")
 
     # Layers
