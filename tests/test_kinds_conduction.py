@@ -531,3 +531,20 @@ def test_bad_input__every_error_of_a_block_reported_at_once(errors_of):
     assert len(messages) == 3
     assert all(re.match(r"proj/sheets/s\.yaml:\d+:\d+: error: S\.wall\.inputs\.", m)
                for m in messages)
+
+
+def test_pipe_radial_profile_figure_ends_at_the_surface_temperature():
+    # The profile follows Fourier's law in a cylinder, T(r) = T_0 − q' ln(r/r_0)/(2πk), so its
+    # end must equal the computed outer-surface temperature; the figure is deterministic.
+    from pathlib import Path
+
+    from calcdoc.evaluate import evaluate_project
+    from calcdoc.kinds.conduction import pipe_figures
+    from calcdoc.project import load_project
+    demo = Path(__file__).resolve().parent.parent / "projects" / "cold-store"
+    block = evaluate_project(load_project(demo)).block("PW1.lthw")
+    curves = block.output.figure_data["radial"]["curves"]
+    surface = block.output.results["theta_surface"].value - 273.15
+    assert curves[-1]["t_degC"][-1] == pytest.approx(surface, abs=1e-6)
+    first, second = pipe_figures(block), pipe_figures(block)
+    assert first[0].svg == second[0].svg and "Elastomeric foam" in first[0].svg

@@ -12,6 +12,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from scipy.constants import zero_Celsius
 
 from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, REQUIRED, Choice, Figure, InputRecord,
@@ -606,6 +608,39 @@ def _p_sat_substituted(theta_c: float) -> str:
 # ----------------------------------------------------------------------------- the figure
 
 
+def pipe_figures(block) -> list[Figure]:
+    """The temperature through the insulation against radius, layers shaded and named."""
+    data = block.output.figure_data.get("radial")
+    if not data:
+        return []
+    from calcdoc.render.plots import figure, svg_of
+
+    sig = block.output.precision
+    with figure(block.key + "-radial", 160, 70) as (fig, ax):
+        for j, curve in enumerate(data["curves"]):
+            r = curve["r_mm"]
+            ax.axvspan(r[0], r[-1], facecolor="#ebebeb" if j % 2 else "#ffffff",
+                       edgecolor="#777777", hatch="//" if j % 2 else None, linewidth=0.6,
+                       zorder=0)
+            ax.text((r[0] + r[-1]) / 2, 0.5, curve["name"], transform=ax.get_xaxis_transform(),
+                    rotation=90, ha="center", va="center", fontsize=6.5,
+                    bbox={"facecolor": "white", "edgecolor": "none", "pad": 1.0}, zorder=3)
+            ax.plot(r, curve["t_degC"], color="#000000", linewidth=1.4, zorder=4,
+                    label="temperature through the insulation" if j == 0 else None)
+        ax.axhline(data["ambient_degC"], color="#000000", linestyle="--", linewidth=0.9,
+                   label="ambient " + format_quantity(data["ambient_degC"] + ZERO_CELSIUS, "K",
+                                                      "degC", sig))
+        ax.set_xlabel("radius from the pipe axis (mm), bore at "
+                      f"{format_number(data['bore_mm'], sig)} mm")
+        ax.set_ylabel("temperature (°C)")
+        ax.legend(loc="best")
+        svg = svg_of(fig)
+    return [Figure(block.key + "-radial", svg,
+                   "Temperature through the pipe insulation against radius (logarithmic within "
+                   "each layer, Fourier's law in a cylinder); the surface film lies between the "
+                   "outer surface and the ambient line.")]
+
+
 def wall_figures(block) -> list[Figure]:
     """The temperature profile through the wall, drawn to scale, as an SVG figure."""
     data = block.output.figure_data.get("profile")
@@ -791,6 +826,19 @@ def _pipe_compute(inp, out):
              theta_s, "K", label="Outer surface temperature", display_unit="degC",
              source=RADIAL_SOURCE)
     out.result("theta_surface", theta_s)
+    # Plain data for the radial profile figure: within layer j the temperature falls with
+    # ln(r) (Fourier's law in a cylinder), T(r) = T_{j-1} − q' ln(r/r_{j-1}) / (2π k_j).
+    curves = []
+    temps = [float(t) for t in flow.interface_temperatures]
+    for j, lam in enumerate(conductivities, start=1):
+        r = np.geomspace(diameters[j - 1] / 2, diameters[j] / 2, 24)
+        curves.append({"r_mm": (1000 * r).tolist(),
+                       "t_degC": (temps[j - 1] - q * np.log(r / r[0]) / (2 * math.pi * lam)
+                                  - ZERO_CELSIUS).tolist(),
+                       "name": _layer_label(inp.layers[j - 1], j)})
+    out.figure_data["radial"] = {"curves": curves, "inside_degC": T_i - ZERO_CELSIUS,
+                                 "ambient_degC": T_a - ZERO_CELSIUS,
+                                 "bore_mm": 500 * diameters[0], "outer_mm": 500 * diameters[-1]}
     if q < 0:
         out.note("The heat flow is negative: the pipe gains heat from the ambient.")
 
@@ -967,6 +1015,7 @@ CYLINDRICAL_LAYERS = Kind(
                    temperature=DIFFERENCE),
     ),
     compute=_pipe_compute,
+    figures=pipe_figures,
     exactly_one=(("outside_coefficient", "surface_emissivity"),),
     caution=PIPE_CAUTION,
     references=("Churchill and Chu (1975)",),
