@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Location", "CalcdocError", "InputError", "InputErrors", "FinalRefused", "UNKNOWN"]
+__all__ = ["Location", "CalcdocError", "InputError", "InputErrors", "FinalRefused"]
 
 
 @dataclass(frozen=True, order=True)
@@ -23,9 +23,6 @@ class Location:
         if self.line:
             return f"{self.file}:{self.line}:{self.col}"
         return self.file
-
-
-UNKNOWN = Location("<input>")
 
 
 class CalcdocError(Exception):

@@ -12,7 +12,8 @@ from calcdoc.located import Node
 from calcdoc.model import (BlockSpec, CheckResult, EvaluatedBlock, EvaluatedSheet, Package,
                            Project)
 from calcdoc.physics import PhysicsRangeError
-from calcdoc.units import UnitProblem, dimension_text, format_number, format_quantity
+from calcdoc.units import (UnitProblem, dimension_text, format_number, format_quantity,
+                           same_dimension)
 
 __all__ = ["evaluate_project", "parse_ref"]
 
@@ -178,7 +179,7 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
                                      did_you_mean(result, [r.name for r in kind.results])))
         elif declared is not None:
             try:
-                ok = dimension_text(unit) == dimension_text(declared.unit)
+                ok = same_dimension(unit, declared.unit)
             except UnitProblem:
                 ok = False
             if not ok:

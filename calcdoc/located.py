@@ -13,7 +13,7 @@ from typing import Any
 import yaml
 import yaml.constructor
 
-from calcdoc.errors import InputError, Location
+from calcdoc.errors import InputError, InputErrors, Location
 
 __all__ = ["Node", "load_yaml", "plain"]
 
@@ -95,7 +95,6 @@ def load_yaml(text: str, path: str) -> Node:
         raise InputError(_loc(path, mark) if mark else Location(path), "",
                          f"not valid YAML: {exc.problem}") from None
     if errors:
-        from calcdoc.errors import InputErrors
         raise InputErrors(errors)
     return tree
 

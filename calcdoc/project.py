@@ -171,8 +171,7 @@ def load_project(folder: str | Path) -> Project:
     get = tree.value.get if tree.is_map else (lambda k: None)
 
     pnode = get("project") or Node({}, tree.loc)
-    if col.keys(pnode, _PROJECT_BLOCK, "project", required=("number", "title")):
-        pass
+    col.keys(pnode, _PROJECT_BLOCK, "project", required=("number", "title"))
     pv = pnode.value if pnode.is_map else {}
     knode = get("package") or Node({}, tree.loc)
     col.keys(knode, _PACKAGE_KEYS, "package", required=("number", "title"))

@@ -149,8 +149,8 @@ def display_unit_for(si_unit: str, preferred: str | None, temperature: str | Non
     return _US_UNITS.get(si_unit, preferred or si_unit)
 
 
-def same_dimension(a: str, b: str) -> bool:
-    """Return True when two unit texts have the same dimension."""
+def same_dimension(a: str | pint.Unit, b: str | pint.Unit) -> bool:
+    """Return True when two units (texts or pint units) have the same dimension."""
     return dimension_text(a) == dimension_text(b)
 
 
@@ -198,7 +198,7 @@ def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,
                               "a difference in K, delta_degC or delta_degF", repr(text),
                               hint=f"write '{match.group(1)} K' or '{match.group(1)} delta_{unit_text}'")
     unit = parse_unit(unit_text)
-    if dimension_text(unit) != dimension_text(target):
+    if not same_dimension(unit, target):
         raise UnitProblem("wrong dimension", dimension_text(target),
                           f"{dimension_text(unit)} in {str(text)!r}")
     return float(ureg.Quantity(number, unit).to(target).magnitude), unit_text

@@ -42,7 +42,8 @@ from calcdoc.errors import InputError, Location
 from calcdoc.located import Node, plain
 from calcdoc.units import (ABSOLUTE, DIFFERENCE, UnitProblem, convert, dimension_text,
                            display_unit_for, format_quantity, latex_quantity,
-                           parse_quantity_text, pretty_unit, pretty_written)
+                           parse_quantity_text, pretty_unit, pretty_written,
+                           same_dimension)
 
 __all__ = [
     "REQUIRED", "ABSOLUTE", "DIFFERENCE", "Field", "Quantity", "Choice", "Text", "Items",
@@ -385,7 +386,7 @@ class Quantity(Field):
             ctx.error(node, path, f"'{self.name}' refers to a list result",
                       f"a single result of {self.type_text()}", target.target)
             raise _Invalid
-        if dimension_text(target.si_unit) != dimension_text(self.unit) or (
+        if not same_dimension(target.si_unit, self.unit) or (
                 self.temperature and target.temperature and self.temperature != target.temperature):
             got = dimension_text(target.si_unit)
             if target.temperature:

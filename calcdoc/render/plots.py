@@ -20,7 +20,7 @@ matplotlib.use("svg")
 from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
 from matplotlib.figure import Figure  # noqa: E402
 
-__all__ = ["figure", "svg_of", "LINE_STYLES", "COLOURS", "HATCHES", "new_axes", "mark_vertical",
+__all__ = ["figure", "svg_of", "LINE_STYLES", "COLOURS", "HATCHES", "mark_vertical",
            "mark_horizontal", "thin", "PLOT_POINTS"]
 
 LINE_STYLES = ("-", "--", "-.", ":", (0, (5, 1, 1, 1, 1, 1)), (0, (1, 1)))
@@ -73,11 +73,6 @@ def svg_of(fig) -> str:
     text = buffer.getvalue()
     start = text.find("<svg")
     return text[start:] if start > 0 else text
-
-
-def new_axes(key: str, width_mm: float = 160, height_mm: float = 80):
-    """Alias of :func:`figure` for readability at call sites."""
-    return figure(key, width_mm, height_mm)
 
 
 def thin(x, y, max_points: int = PLOT_POINTS) -> tuple[np.ndarray, np.ndarray]:
