@@ -7,8 +7,14 @@ calcdoc's marker from an earlier build.
 
 from __future__ import annotations
 
+import ctypes
+import errno
+import hashlib
 import os
+import re
 import shutil
+import socket
+import sys
 import tempfile
 import time
 from dataclasses import dataclass, field
@@ -18,10 +24,11 @@ from calcdoc.archive import dumps, manifest_document, results_document
 from calcdoc.errors import FinalRefused, InputError, InputErrors, Location
 from calcdoc.evaluate import evaluate_project
 from calcdoc.model import Package
-from calcdoc.project import load_project
+from calcdoc.project import read_project
 from calcdoc.render.html import TEMPLATES, package_view, render_package_html, render_site
 
-__all__ = ["build", "final_refusals", "MARKER", "BuildReport", "check_output_folder"]
+__all__ = ["build", "final_refusals", "MARKER", "BuildReport", "check_output_folder", "swap_in",
+           "remove_dead_temporaries"]
 
 MARKER = ".calcdoc-build"
 
@@ -100,18 +107,24 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     out = Path(out_dir) if out_dir else Path("build") / project_dir.resolve().name
     check_output_folder(out)
 
-    project = load_project(project_dir)
+    project, errors = read_project(project_dir)
     timings["load"] = time.perf_counter() - t0
+    if project is None:
+        raise InputErrors(errors)
     t = time.perf_counter()
-    package = evaluate_project(project)
+    package = evaluate_project(project, errors)
     timings["evaluate"] = time.perf_counter() - t
     if final:
         reasons = final_refusals(package)
         if reasons:
             raise FinalRefused(reasons)
 
-    out.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
+    try:
+        out.parent.mkdir(parents=True, exist_ok=True)
+        remove_dead_temporaries(out)
+        tmp = Path(tempfile.mkdtemp(prefix=_temporary_prefix(out), dir=out.parent))
+    except OSError as exc:
+        raise _write_error(out, exc) from None
     try:
         t = time.perf_counter()
         inputs = _input_files(project)
@@ -139,7 +152,10 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         (tmp / "manifest.json").write_text(dumps(manifest_document(inputs, outputs)),
                                            encoding="utf-8")
         os.chmod(tmp, 0o755)
-        _swap_in(tmp, out)
+        swap_in(tmp, out)
+    except OSError as exc:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise _write_error(out, exc) from None
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
@@ -148,16 +164,111 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     return BuildReport(out, package, timings, files)
 
 
+def _write_error(out: Path, exc: OSError) -> InputErrors:
+    """An output folder that cannot be written (read-only, full disk, a file in the way)."""
+    reason = exc.strerror or type(exc).__name__
+    where = exc.filename or out
+    return InputErrors([InputError(Location(str(out)), "--out", "cannot write the output folder",
+                                   "a writable folder with free space",
+                                   f"{reason}: {where}")])
+
+
 def _input_files(project) -> dict[str, bytes]:
-    root = project.root.resolve()
-    return {str(p.resolve().relative_to(root)): p.read_bytes() for p in project.input_files}
+    return {name: project.files.read(name) for name in project.input_files}
 
 
-def _swap_in(tmp: Path, out: Path) -> None:
-    if out.exists():
-        old = out.with_name(f".{out.name}.old-{os.getpid()}")
-        os.replace(out, old)
+# ----------------------------------------------------------------------------- the swap
+
+_AT_FDCWD = -100
+_RENAME_EXCHANGE = 2
+
+
+def _exchange(a: Path, b: Path) -> bool:
+    """Swap two folders in one step (Linux renameat2 RENAME_EXCHANGE); False if unsupported."""
+    if not sys.platform.startswith("linux"):
+        return False
+    try:
+        libc = ctypes.CDLL(None, use_errno=True)
+        renameat2 = libc.renameat2
+    except (OSError, AttributeError):
+        return False
+    renameat2.argtypes = [ctypes.c_int, ctypes.c_char_p, ctypes.c_int, ctypes.c_char_p,
+                          ctypes.c_uint]
+    if renameat2(_AT_FDCWD, os.fsencode(a), _AT_FDCWD, os.fsencode(b), _RENAME_EXCHANGE) == 0:
+        return True
+    err = ctypes.get_errno()
+    if err in (errno.ENOSYS, errno.EINVAL, errno.EOPNOTSUPP):
+        return False  # the file system cannot exchange: fall back
+    raise OSError(err, os.strerror(err), str(b))
+
+
+def swap_in(tmp: Path, out: Path) -> None:
+    """Put the finished build ``tmp`` in place of ``out``; there is always an output folder.
+
+    On Linux the two folders are exchanged in one atomic step and the old one (now at ``tmp``)
+    is removed; elsewhere the old folder is first renamed aside, which leaves a moment without
+    one."""
+    if not out.exists():
         os.replace(tmp, out)
-        shutil.rmtree(old, ignore_errors=True)
-    else:
-        os.replace(tmp, out)
+        return
+    if _exchange(tmp, out):
+        shutil.rmtree(tmp, ignore_errors=True)
+        return
+    old = Path(tempfile.mkdtemp(prefix=_temporary_prefix(out, "old"), dir=out.parent))
+    os.replace(out, old / "build")
+    os.replace(tmp, out)
+    shutil.rmtree(old, ignore_errors=True)
+
+
+# ----------------------------------------------------------------------------- stale folders
+
+
+def _boot_id() -> str:
+    try:
+        return Path("/proc/sys/kernel/random/boot_id").read_text().strip().replace("-", "")[:8]
+    except OSError:
+        return ""
+
+
+def _start_time(pid: int) -> str:
+    """Return a process's start time in clock ticks since boot, or '' when it does not run."""
+    try:
+        stat = Path(f"/proc/{pid}/stat").read_text()
+    except OSError:
+        return ""
+    return stat.rsplit(")", 1)[1].split()[19]
+
+
+def _host() -> str:
+    return hashlib.sha256(socket.gethostname().encode()).hexdigest()[:8]
+
+
+def _temporary_prefix(out: Path, what: str = "building") -> str:
+    """The name of a temporary folder says who made it: host, boot, process and its start, so
+    that a later build can prove a leftover one dead (the process is gone)."""
+    pid = os.getpid()
+    return f".{out.name}.{what}-{_host()}{_boot_id() or 'x' * 8}-{pid}-{_start_time(pid)}-"
+
+
+_TEMPORARY = re.compile(r"^\.(?P<name>.+)\.(building|old)-(?P<host>[0-9a-f]{8})"
+                        r"(?P<boot>[0-9a-fx]{8})-(?P<pid>\d+)-(?P<start>\d*)-[^/]+$")
+
+
+def remove_dead_temporaries(out: Path) -> list[Path]:
+    """Remove temporary folders of earlier builds of ``out`` whose process is provably gone.
+
+    Provably: made on this host (same host name), and either before the last boot or by a
+    process that no longer runs with the recorded start time. Anything else is left alone."""
+    removed = []
+    boot, host = _boot_id(), _host()
+    if not boot or not out.parent.is_dir():
+        return removed
+    for entry in out.parent.iterdir():
+        match = _TEMPORARY.match(entry.name)
+        if not match or match["name"] != out.name or match["host"] != host:
+            continue
+        dead = match["boot"] != boot or _start_time(int(match["pid"])) != match["start"]
+        if dead and entry.is_dir() and not entry.is_symlink():
+            shutil.rmtree(entry, ignore_errors=True)
+            removed.append(entry)
+    return removed

@@ -2,25 +2,30 @@
 
 Exit status: 0 success; 1 a check failed (``check --strict``), ``--final`` refused, or verify/diff
 found a difference; 2 bad input or usage, with ``FILE:LINE:COL: error: ...`` on stderr and
-nothing written.
+nothing written; 3 an internal fault (a defect of calcdoc: reported as one, never as a
+traceback unless ``CALCDOC_DEBUG`` is set).
 """
 
 from __future__ import annotations
 
 import argparse
+import io
 import json
+import os
 import sys
+import traceback
 from pathlib import Path
 
 from calcdoc import __version__
-from calcdoc.errors import FinalRefused, InputError, InputErrors
+from calcdoc.errors import (EXIT_BAD_INPUT, EXIT_INTERNAL, FinalRefused, InputError,
+                            InputErrors, render)
 
 __all__ = ["main"]
 
 
 def _print_errors(errors) -> None:
     for err in errors:
-        print(str(err), file=sys.stderr)
+        print(render(err), file=sys.stderr)
     count = len(errors)
     print(f"calcdoc: {count} error{'s' if count != 1 else ''}; nothing written",
           file=sys.stderr)
@@ -39,9 +44,8 @@ def cmd_build(args) -> int:
 
 def cmd_check(args) -> int:
     from calcdoc.archive import results_document
-    from calcdoc.evaluate import evaluate_project
-    from calcdoc.project import load_project
-    package = evaluate_project(load_project(args.project))
+    from calcdoc.evaluate import evaluate_folder
+    package = evaluate_folder(args.project)
     failed = []
     if args.json:
         print(json.dumps(results_document(package), indent=1, ensure_ascii=False))
@@ -191,29 +195,79 @@ def parser() -> argparse.ArgumentParser:
     return p
 
 
+class _QuietPipe(io.TextIOBase):
+    """Standard output that stops writing, without an error, once the reader has gone
+    (``calcdoc kinds | head -1``); the command still finishes and returns its own status."""
+
+    def __init__(self, stream):
+        self.stream = stream
+        self.closed_by_reader = False
+
+    def write(self, text):
+        if not self.closed_by_reader:
+            try:
+                self.stream.write(text)
+            except BrokenPipeError:
+                self._reader_gone()
+        return len(text)
+
+    def flush(self):
+        if not self.closed_by_reader:
+            try:
+                self.stream.flush()
+            except BrokenPipeError:
+                self._reader_gone()
+
+    def _reader_gone(self):
+        self.closed_by_reader = True
+        try:  # later writes by the interpreter at exit must not fail either
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, self.stream.fileno())
+        except (OSError, ValueError):
+            pass
+
+
 def main(argv: list[str] | None = None) -> int:
-    args = parser().parse_args(argv)
+    real_stdout = sys.stdout
+    sys.stdout = _QuietPipe(real_stdout)
+    try:
+        return _run(argv)
+    finally:
+        sys.stdout.flush()
+        sys.stdout = real_stdout
+
+
+def _run(argv: list[str] | None) -> int:
+    try:
+        args = parser().parse_args(argv)
+    except SystemExit as exit_:  # argparse: --help (0) or a usage error (2)
+        return int(exit_.code or 0)
     try:
         return args.func(args)
     except InputErrors as errs:
         _print_errors(errs.errors)
-        return 2
+        return EXIT_BAD_INPUT
     except InputError as err:
         _print_errors([err])
-        return 2
+        return EXIT_BAD_INPUT
     except FinalRefused as refused:
         print("calcdoc: --final refused:", file=sys.stderr)
         for reason in refused.reasons:
             print(f"  - {reason}", file=sys.stderr)
         return 1
-    except FileNotFoundError as exc:
-        print(f"{exc.filename}: error: not found", file=sys.stderr)
-        return 2
-    except (ValueError, OSError) as exc:
-        if args.command in ("verify", "diff"):
-            print(f"calcdoc: error: {exc}", file=sys.stderr)
-            return 2
-        raise
+    except KeyboardInterrupt:
+        print("calcdoc: interrupted; nothing written", file=sys.stderr)
+        return 130
+    except Exception as exc:  # noqa: BLE001 - a defect: say so plainly, never a traceback
+        if os.environ.get("CALCDOC_DEBUG"):
+            traceback.print_exc()
+        where = traceback.extract_tb(exc.__traceback__)[-1]
+        print(f"calcdoc: internal error: {type(exc).__name__}: {exc} "
+              f"(at {Path(where.filename).name}:{where.lineno})", file=sys.stderr)
+        print("calcdoc: this is a defect in calcdoc, not in your input; please report it with "
+              "the command and the input files (set CALCDOC_DEBUG=1 for the details); "
+              "nothing was written", file=sys.stderr)
+        return EXIT_INTERNAL
 
 
 if __name__ == "__main__":  # pragma: no cover

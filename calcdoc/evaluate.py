@@ -8,19 +8,21 @@ from calcdoc.errors import InputError, InputErrors, Location
 from calcdoc.kinds import get_kind
 from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, BlockOutput, InputContext, Quantity,
                                 ResolvedRef, _Invalid, convert_fields, did_you_mean)
-from calcdoc.located import Node
+from calcdoc.located import Node, plain
 from calcdoc.model import (BlockSpec, CheckResult, EvaluatedBlock, EvaluatedSheet, Package,
                            Project)
 from calcdoc.physics import PhysicsRangeError
 from calcdoc.units import (UnitProblem, dimension_text, format_number, format_quantity,
                            same_dimension)
 
-__all__ = ["evaluate_project", "parse_ref"]
+__all__ = ["evaluate_project", "evaluate_folder", "parse_ref"]
 
 
-def parse_ref(text: str, sheet_id: str) -> tuple[str, str, str] | None:
+def parse_ref(text, sheet_id: str) -> tuple[str, str, str] | None:
     """Return (sheet, block, result) for 'SHEET.block.result' or 'block.result'; else None."""
-    parts = str(text).split(".")
+    if not isinstance(text, str):
+        return None
+    parts = text.split(".")
     if len(parts) == 3 and all(parts):
         return parts[0], parts[1], parts[2]
     if len(parts) == 2 and all(parts):
@@ -54,9 +56,13 @@ def _order(project: Project, errors: list[InputError]) -> list[BlockSpec]:
             if parsed is None:
                 errors.append(InputError(
                     ref_node.loc, f"{key}.inputs", "malformed reference",
-                    "'SHEET.block.result' or 'block.result'", repr(ref_node.value)))
+                    "'SHEET.block.result' or 'block.result'", repr(plain(ref_node))[:80]))
                 continue
             target = f"{parsed[0]}.{parsed[1]}"
+            if target not in blocks and (target in project.unreadable
+                                         or parsed[0] in project.unreadable):
+                deps[key].append(target)  # its own error is reported; this block is skipped
+                continue
             if target not in blocks:
                 options = [k for k in blocks]
                 hint = did_you_mean(target, options)
@@ -76,6 +82,8 @@ def _order(project: Project, errors: list[InputError]) -> list[BlockSpec]:
     state: dict[str, int] = {}  # 1 visiting, 2 done
 
     def visit(key: str, stack: list[str]):
+        if key not in blocks:
+            return
         if state.get(key) == 2:
             return
         if state.get(key) == 1:
@@ -96,13 +104,27 @@ def _order(project: Project, errors: list[InputError]) -> list[BlockSpec]:
     return [blocks[k] for k in order]
 
 
-def evaluate_project(project: Project) -> Package:
-    """Return the evaluated package; raise InputErrors listing every problem found."""
-    errors: list[InputError] = []
+def evaluate_folder(folder) -> Package:
+    """Load and evaluate a project; raise InputErrors listing every problem of both stages.
+
+    Blocks that loaded are evaluated even when others did not, so that one run reports every
+    error across loading, references and evaluation."""
+    from calcdoc.project import read_project
+    project, errors = read_project(folder)
+    if project is None:
+        raise InputErrors(errors)
+    return evaluate_project(project, errors)
+
+
+def evaluate_project(project: Project, errors: list[InputError] | None = None) -> Package:
+    """Return the evaluated package; raise InputErrors listing every problem found (and
+    ``errors`` found before, e.g. by the loader)."""
+    errors = list(errors or [])
     ordered = _order(project, errors)
     done: dict[str, EvaluatedBlock] = {}
     failed: set[str] = set()
 
+    failed.update(project.unreadable)
     for spec in ordered:
         block = _evaluate_block(spec, project, done, failed, errors)
         if block is None:
@@ -123,9 +145,11 @@ class _DependsOnFailed(Exception):
 def _resolver(spec: BlockSpec, done: dict, failed: set):
     def resolve(ref_node: Node, path: str) -> ResolvedRef:
         parsed = parse_ref(ref_node.value, spec.sheet_id)
+        if parsed is None:  # reported when the evaluation order was made
+            raise _DependsOnFailed
         sheet, block, result = parsed
         key = f"{sheet}.{block}"
-        if key in failed or key not in done:
+        if key in failed or sheet in failed or key not in done:
             raise _DependsOnFailed
         target = done[key]
         out = target.output

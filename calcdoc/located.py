@@ -3,28 +3,47 @@
 Every value a user writes keeps its location so that any later error can point at it. Dates come
 back as ``datetime.date`` and bare numbers as int/float, exactly as YAML's safe constructor gives
 them; callers normalise them once, in the loader.
+
+A YAML file is text from a stranger: before it is composed, one pass over its events (which
+PyYAML parses without recursion) refuses nesting deeper than :data:`MAX_DEPTH` and more than
+:data:`MAX_EVENTS` events, and conversion counts every value it produces, so that a few hundred
+bytes of nested aliases cannot expand into gigabytes (:data:`MAX_VALUES`).
 """
 
 from __future__ import annotations
 
+import datetime
 from dataclasses import dataclass, field
 from typing import Any
 
 import yaml
 import yaml.constructor
 
-from calcdoc.errors import InputError, InputErrors, Location
+from calcdoc.errors import InputError, InputErrors, Location, remember_source
 
-__all__ = ["Node", "load_yaml", "plain"]
+__all__ = ["Node", "load_yaml", "plain", "is_date", "MAX_DEPTH", "MAX_VALUES", "MAX_EVENTS"]
+
+MAX_DEPTH = 40
+"""Deepest nesting of mappings and lists in one file; a sheet needs about eight."""
+
+MAX_VALUES = 100_000
+"""Most values one file may expand to, aliases counted at every use."""
+
+MAX_EVENTS = 200_000
+"""Most YAML events (scalars, collection starts and ends) in one file."""
 
 
 @dataclass
 class Node:
-    """A YAML value with its location; mappings also keep each key's location."""
+    """A YAML value with its location; mappings also keep each key's location.
+
+    ``style`` is the scalar's quoting as written (None plain, ``'`` or ``"`` quoted, ``|`` or
+    ``>`` block), so that a column inside a value can be located (:meth:`loc_at`)."""
 
     value: Any
     loc: Location
     key_locs: dict[str, Location] = field(default_factory=dict)
+    style: str | None = None
 
     @property
     def is_map(self) -> bool:
@@ -41,61 +60,131 @@ class Node:
     def get(self, key: str) -> "Node | None":
         return self.value.get(key) if self.is_map else None
 
+    def loc_at(self, offset: int) -> Location:
+        """Return the location of character ``offset`` of a one-line scalar as written."""
+        if self.style in ("|", ">") or offset <= 0:
+            return self.loc
+        shift = offset + (1 if self.style in ("'", '"') else 0)
+        loc = self.loc
+        return Location(loc.file, loc.line, loc.col + shift, loc.name)
+
 
 class _Constructor(yaml.constructor.SafeConstructor):
     pass
 
 
-def _loc(path: str, mark) -> Location:
-    return Location(path, mark.line + 1, mark.column + 1)
+class _TooBig(Exception):
+    def __init__(self, loc: Location, what: str, expected: str, got: str):
+        self.error = InputError(loc, "", what, expected, got)
 
 
-def _convert(node: yaml.Node, path: str, constructor: _Constructor, errors: list[InputError]) -> Node:
-    loc = _loc(path, node.start_mark)
-    if isinstance(node, yaml.MappingNode):
-        constructor.flatten_mapping(node)
-        out: dict[str, Node] = {}
-        key_locs: dict[str, Location] = {}
-        for key_node, value_node in node.value:
-            # Keys are names as written: YAML 1.1 would read `on:` or `no:` as booleans.
-            key = key_node.value if isinstance(key_node, yaml.ScalarNode) else \
-                constructor.construct_object(key_node, deep=True)
-            key_loc = _loc(path, key_node.start_mark)
-            if not isinstance(key, str):
-                key = str(key)
-            if key in out:
-                errors.append(InputError(key_loc, key, "duplicate key",
-                                         "each key once", f"a second '{key}'"))
-                continue
-            out[key] = _convert(value_node, path, constructor, errors)
-            key_locs[key] = key_loc
-        return Node(out, loc, key_locs)
-    if isinstance(node, yaml.SequenceNode):
-        return Node([_convert(item, path, constructor, errors) for item in node.value], loc)
-    return Node(constructor.construct_object(node, deep=True), loc)
+def _loc(path: str, mark, name: str) -> Location:
+    return Location(path, mark.line + 1, mark.column + 1, name)
 
 
-def load_yaml(text: str, path: str) -> Node:
-    """Return the located tree of one YAML document; raise InputError on bad YAML."""
-    errors: list[InputError] = []
+def _prescan(text: str, path: str, name: str) -> None:
+    """Refuse nesting deeper than MAX_DEPTH and more than MAX_EVENTS events, before composing."""
+    depth = 0
+    count = 0
+    for event in yaml.parse(text, Loader=yaml.SafeLoader):
+        count += 1
+        if count > MAX_EVENTS:
+            raise _TooBig(_loc(path, event.start_mark, name), "too many values in one file",
+                          f"at most {MAX_EVENTS} YAML events", "more")
+        if isinstance(event, (yaml.MappingStartEvent, yaml.SequenceStartEvent)):
+            depth += 1
+            if depth > MAX_DEPTH:
+                raise _TooBig(_loc(path, event.start_mark, name), "nested too deeply",
+                              f"at most {MAX_DEPTH} levels of mappings and lists",
+                              f"more than {MAX_DEPTH}")
+        elif isinstance(event, (yaml.MappingEndEvent, yaml.SequenceEndEvent)):
+            depth -= 1
+
+
+class _Converter:
+    def __init__(self, path: str, name: str):
+        self.path, self.name = path, name
+        self.constructor = _Constructor()
+        self.errors: list[InputError] = []
+        self.count = 0
+
+    def loc(self, mark) -> Location:
+        return _loc(self.path, mark, self.name)
+
+    def scalar(self, node: yaml.Node):
+        try:
+            return self.constructor.construct_object(node, deep=True)
+        except yaml.constructor.ConstructorError as exc:
+            raise InputError(self.loc(exc.problem_mark or node.start_mark), "",
+                             f"not valid YAML: {exc.problem}") from None
+        except (ValueError, OverflowError, TypeError) as exc:
+            text = str(node.value)[:60]
+            if node.tag == "tag:yaml.org,2002:timestamp":
+                raise InputError(self.loc(node.start_mark), "", "not a valid date",
+                                 "a date YYYY-MM-DD", repr(text)) from None
+            raise InputError(self.loc(node.start_mark), "", "not a valid value",
+                             "a number, a date or text", f"{text!r} ({exc})") from None
+
+    def convert(self, node: yaml.Node) -> Node:
+        self.count += 1
+        if self.count > MAX_VALUES:
+            raise _TooBig(self.loc(node.start_mark), "too many values in one file (aliases "
+                          "count at every use)", f"at most {MAX_VALUES} values", "more")
+        loc = self.loc(node.start_mark)
+        if isinstance(node, yaml.MappingNode):
+            try:
+                self.constructor.flatten_mapping(node)
+            except yaml.constructor.ConstructorError as exc:
+                raise InputError(self.loc(exc.problem_mark or node.start_mark), "",
+                                 f"not valid YAML: {exc.problem}") from None
+            out: dict[str, Node] = {}
+            key_locs: dict[str, Location] = {}
+            for key_node, value_node in node.value:
+                # Keys are names as written: YAML 1.1 would read `on:` or `no:` as booleans.
+                if isinstance(key_node, yaml.ScalarNode):
+                    key = key_node.value
+                else:
+                    raise InputError(self.loc(key_node.start_mark), "",
+                                     "a key must be a plain name", "a name such as 'title'",
+                                     "a mapping or a list")
+                key_loc = self.loc(key_node.start_mark)
+                if key in out:
+                    self.errors.append(InputError(key_loc, key, "duplicate key",
+                                                  "each key once", f"a second '{key}'"))
+                    continue
+                out[key] = self.convert(value_node)
+                key_locs[key] = key_loc
+            return Node(out, loc, key_locs)
+        if isinstance(node, yaml.SequenceNode):
+            return Node([self.convert(item) for item in node.value], loc)
+        return Node(self.scalar(node), loc, style=getattr(node, "style", None))
+
+
+def load_yaml(text: str, path: str, name: str = "") -> Node:
+    """Return the located tree of one YAML document; raise InputError(s) on bad YAML.
+
+    ``path`` labels the file in messages; ``name`` is its path inside the project."""
+    remember_source(path, text)
     try:
+        _prescan(text, path, name)
         root = yaml.compose(text, Loader=yaml.SafeLoader)
+    except _TooBig as big:
+        raise big.error from None
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
-        loc = _loc(path, mark) if mark else Location(path)
+        loc = _loc(path, mark, name) if mark else Location(path, name=name)
         raise InputError(loc, "", f"not valid YAML: {exc.problem or exc.context}") from None
     except yaml.YAMLError as exc:  # pragma: no cover - unmarked YAML errors are rare
-        raise InputError(Location(path), "", f"not valid YAML: {exc}") from None
+        raise InputError(Location(path, name=name), "", f"not valid YAML: {exc}") from None
     if root is None:
-        return Node({}, Location(path, 1, 1))
+        return Node({}, Location(path, 1, 1, name))
+    converter = _Converter(path, name)
     try:
-        tree = _convert(root, path, _Constructor(), errors)
-    except yaml.constructor.ConstructorError as exc:
-        mark = exc.problem_mark
-        raise InputError(_loc(path, mark) if mark else Location(path), "",
-                         f"not valid YAML: {exc.problem}") from None
-    if errors:
-        raise InputErrors(errors)
+        tree = converter.convert(root)
+    except _TooBig as big:
+        raise big.error from None
+    if converter.errors:
+        raise InputErrors(converter.errors)
     return tree
 
 
@@ -108,3 +197,18 @@ def plain(node: Node | None) -> Any:
     if node.is_list:
         return [plain(v) for v in node.value]
     return node.value
+
+
+def is_date(value: Any) -> bool:
+    """Return whether a scalar is a date as YAML reads it, or ISO date text."""
+    if isinstance(value, datetime.datetime):
+        return True
+    if isinstance(value, datetime.date):
+        return True
+    if isinstance(value, str):
+        try:
+            datetime.date.fromisoformat(value.strip())
+        except ValueError:
+            return False
+        return True
+    return False

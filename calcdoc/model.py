@@ -82,7 +82,7 @@ class ReviewComment:
 
 @dataclass
 class Project:
-    root: Path
+    root: Path | None
     number: str
     title: str
     client: str
@@ -98,7 +98,9 @@ class Project:
     named: dict[str, dict]
     reviewer: str = ""
     comments: list[ReviewComment] = field(default_factory=list)
-    input_files: list[Path] = field(default_factory=list)
+    input_files: list[str] = field(default_factory=list)  # names inside the project
+    files: Any = None  # calcdoc.sources.ProjectFiles the project was read from
+    unreadable: set[str] = field(default_factory=set)  # sheets and blocks that did not load
 
     @property
     def revision(self) -> Revision:

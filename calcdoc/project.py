@@ -1,7 +1,10 @@
 """Load project.yaml, the sheets, materials and review comments into the model, with locations.
 
-Every problem found is collected and raised at the end as one :class:`InputErrors`, so a user sees
-all of them in one run. Unknown keys are errors (a typo would otherwise silently take a default).
+Every problem found is collected, so a user sees all of them in one run: :func:`read_project`
+returns the project as far as it could be read together with the errors (the evaluator goes on
+with the blocks that loaded and reports everything at the end); :func:`load_project` raises them.
+Unknown keys are errors (a typo would otherwise silently take a default). Files are read through
+a :class:`~calcdoc.sources.ProjectFiles`, which keeps every read inside the project folder.
 """
 
 from __future__ import annotations
@@ -13,12 +16,14 @@ from pathlib import Path
 from calcdoc.errors import InputError, InputErrors, Location
 from calcdoc.kinds import registry
 from calcdoc.kinds.base import did_you_mean
-from calcdoc.located import Node, load_yaml, plain
+from calcdoc.located import Node, is_date, load_yaml, plain
 from calcdoc.model import (BlockSpec, CheckSpec, Project, ReviewComment, Revision, SheetSpec,
                            Signature)
+from calcdoc.sources import DiskFiles, FileProblem, ProjectFiles
 from calcdoc.units import UnitProblem, parse_quantity_text
 
-__all__ = ["load_project", "load_materials", "load_named_values", "LIBRARY_DIR"]
+__all__ = ["load_project", "read_project", "load_materials", "load_named_values", "LIBRARY_DIR",
+           "builtin_material_files", "Collector", "project_files"]
 
 LIBRARY_DIR = Path(__file__).parent / "materials"
 
@@ -30,7 +35,9 @@ _MATERIAL_PROPERTIES = {"conductivity": "W/(m*K)", "density": "kg/m^3",
 _MATERIAL_TEXT = {"title", "source", "law", "notes", "category"}
 
 
-class _Collector:
+class Collector:
+    """Collects located errors; checks mappings' keys and reads scalars safely."""
+
     def __init__(self):
         self.errors: list[InputError] = []
 
@@ -41,7 +48,7 @@ class _Collector:
         """Check a mapping's keys: unknown keys and missing required keys are errors."""
         if not node.is_map:
             self.error(node.loc, where, "not a mapping", "a mapping of " + ", ".join(allowed),
-                       repr(plain(node)))
+                       _shown(node))
             return False
         for key in node.value:
             if key not in allowed:
@@ -53,6 +60,35 @@ class _Collector:
                 self.error(node.loc, where, f"missing key '{key}'", f"'{key}'", "nothing")
         return True
 
+    def text(self, node: Node | None, where: str, default: str = "") -> str:
+        """Return a scalar as text; a mapping or a list where text belongs is an error."""
+        if node is None or node.value is None:
+            return default
+        if not node.is_scalar:
+            self.error(node.loc, where, "not text", "a single value",
+                       "a mapping" if node.is_map else "a list")
+            return default
+        return _text(node)
+
+    def date(self, node: Node | None, where: str) -> str:
+        """Return a date as ISO text; anything but a date (or nothing) is an error."""
+        if node is None or node.value in (None, ""):
+            return ""
+        if not node.is_scalar or not is_date(node.value):
+            self.error(node.loc, where, "not a date", "a date YYYY-MM-DD", _shown(node))
+            return ""
+        return _text(node)
+
+
+# Kept for callers outside this module that collect errors the same way.
+_Collector = Collector
+
+
+def _shown(node: Node) -> str:
+    """A short text of what was written, for 'got ...' (never a whole file)."""
+    text = repr(plain(node))
+    return text if len(text) <= 80 else text[:77] + "..."
+
 
 def _text(node: Node | None, default: str = "") -> str:
     if node is None or node.value is None:
@@ -60,21 +96,23 @@ def _text(node: Node | None, default: str = "") -> str:
     value = node.value
     if isinstance(value, (datetime.date, datetime.datetime)):
         return value.isoformat()[:10]
+    if not node.is_scalar:
+        return default
     return str(value)
 
 
-def _read(path: Path, root: Path, col: _Collector) -> Node | None:
-    rel = _relative(path, root)
+def _read(files: ProjectFiles, name: str, col: Collector) -> Node | None:
+    label = files.label(name)
     try:
-        text = path.read_text(encoding="utf-8")
+        text = files.read_text(name)
     except FileNotFoundError:
-        col.error(Location(rel), "", "file not found", "an existing file", str(path))
+        col.error(Location(label, name=name), "", "file not found", "an existing file", name)
         return None
-    except UnicodeDecodeError as exc:
-        col.error(Location(rel), "", "not UTF-8 text", "UTF-8", str(exc.reason))
+    except FileProblem as problem:
+        col.error(Location(label, name=name), "", problem.what, problem.expected, problem.got)
         return None
     try:
-        return load_yaml(text, rel)
+        return load_yaml(text, label, name)
     except InputError as err:
         col.errors.append(err)
     except InputErrors as errs:
@@ -82,56 +120,66 @@ def _read(path: Path, root: Path, col: _Collector) -> Node | None:
     return None
 
 
-def _relative(path: Path, root: Path) -> str:
-    try:
-        return str(path.resolve().relative_to(root.resolve().parent))
-    except ValueError:
-        return str(path)
+def project_files(folder: str | Path | ProjectFiles) -> ProjectFiles:
+    """Return the files of a project given as a folder or already as ProjectFiles."""
+    return folder if isinstance(folder, ProjectFiles) else DiskFiles(folder)
 
 
 # ----------------------------------------------------------------------------- libraries
 
 
-def load_materials(paths: list[Path], root: Path, col: _Collector) -> dict:
-    """Return materials by name, each property converted to SI; later files override earlier."""
+def load_materials(paths: list, root, col: Collector, files: ProjectFiles | None = None) -> dict:
+    """Return materials by name, each property converted to SI; later files override earlier.
+
+    ``paths`` are library files on disk (``root`` their folder) or, with ``files``, names of
+    project files."""
     materials: dict[str, dict] = {}
     for path in paths:
-        tree = _read(path, root, col)
+        if files is None:
+            source = DiskFiles(Path(path).parent)
+            name = Path(path).name
+        else:
+            source, name = files, str(path)
+        tree = _read(source, name, col)
         if tree is None:
             continue
         if not tree.is_map:
-            col.error(tree.loc, "", "not a mapping of materials", "NAME: {...}", repr(plain(tree)))
+            col.error(tree.loc, "", "not a mapping of materials", "NAME: {...}", _shown(tree))
             continue
-        for name, entry in tree.value.items():
-            where = f"materials.{name}"
+        for material, entry in tree.value.items():
+            where = f"materials.{material}"
             if not entry.is_map:
                 col.error(entry.loc, where, "not a mapping", "{title, conductivity, source, ...}",
-                          repr(plain(entry)))
+                          _shown(entry))
                 continue
-            record: dict = {"name": name, "title": name, "source": ""}
+            record: dict = {"name": material, "title": material, "source": ""}
             for key, value in entry.value.items():
                 if key in _MATERIAL_PROPERTIES:
+                    if not value.is_scalar or isinstance(value.value, bool):
+                        col.error(value.loc, f"{where}.{key}", "not a quantity",
+                                  f"a quantity in {_MATERIAL_PROPERTIES[key]}", _shown(value))
+                        continue
                     try:
                         record[key] = parse_quantity_text(str(value.value),
                                                           _MATERIAL_PROPERTIES[key])[0]
                     except UnitProblem as p:
                         col.error(value.loc, f"{where}.{key}", p.what, p.expected, p.got, p.hint)
                 elif key in _MATERIAL_TEXT:
-                    record[key] = _text(value)
+                    record[key] = col.text(value, f"{where}.{key}")
                 else:
                     record[key] = plain(value)  # law parameters, read by the law
             if not record["source"]:
                 col.error(entry.loc, where, "material without a source",
                           "a source text (standard, handbook or product data)", "none")
-            record["file"] = _relative(path, root)
-            materials[name] = record
+            record["file"] = tree.loc.name or tree.loc.file
+            materials[material] = record
     return materials
 
 
-def load_named_values(root: Path | None = None) -> dict:
+def load_named_values() -> dict:
     """Return calcdoc's library of named trade values: name → {value, title, source}."""
-    col = _Collector()
-    tree = _read(LIBRARY_DIR / "named.yaml", LIBRARY_DIR, col)
+    col = Collector()
+    tree = _read(DiskFiles(LIBRARY_DIR), "named.yaml", col)
     if col.errors:
         raise InputErrors(col.errors)
     return {name: {k: _text(v) for k, v in entry.value.items()} for name, entry in
@@ -154,19 +202,32 @@ _BLOCK_KEYS = ("id", "kind", "title", "inputs", "checks", "display", "notes")
 _CHECK_KEYS = ("result", "at_most", "at_least", "source")
 _SIGN_ROLES = ("prepared", "checked", "approved")
 _SIGN_KEYS = ("by", "date", "rev")
+_REVIEW_KEYS = ("on", "by", "date", "text", "status", "response")
 
 
-def load_project(folder: str | Path) -> Project:
+def load_project(folder: str | Path | ProjectFiles) -> Project:
     """Return the Project in ``folder``; raise InputErrors listing every problem found."""
-    root = Path(folder)
-    col = _Collector()
-    project_file = root / "project.yaml"
-    if not project_file.is_file():
-        raise InputErrors([InputError(Location(str(project_file)), "", "no project.yaml here",
-                                      "a project folder with project.yaml", str(root))])
-    tree = _read(project_file, root, col)
+    project, errors = read_project(folder)
+    if errors:
+        raise InputErrors(errors)
+    return project
+
+
+def read_project(folder: str | Path | ProjectFiles) -> tuple[Project | None, list[InputError]]:
+    """Return the project as far as it could be read, and every error found on the way.
+
+    Blocks that could not be read are left out and their keys listed in ``project.unreadable``,
+    so that the evaluator skips what depends on them instead of reporting a second error."""
+    files = project_files(folder)
+    col = Collector()
+    if not files.exists("project.yaml"):
+        label = files.label("project.yaml")
+        return None, [InputError(Location(label), "", "no project.yaml here",
+                                 "a project folder with project.yaml",
+                                 files.label(".") if hasattr(files, "root") else label)]
+    tree = _read(files, "project.yaml", col)
     if tree is None:
-        raise InputErrors(col.errors)
+        return None, col.errors
     col.keys(tree, _PROJECT_KEYS, "", required=("project", "package", "revisions"))
     get = tree.value.get if tree.is_map else (lambda k: None)
 
@@ -177,67 +238,76 @@ def load_project(folder: str | Path) -> Project:
     col.keys(knode, _PACKAGE_KEYS, "package", required=("number", "title"))
     kv = knode.value if knode.is_map else {}
 
-    revisions = _revisions(get("revisions"), col, tree.loc)
-    units = _text(get("units"), "SI")
+    revisions = _revisions(get("revisions"), col)
+    units = col.text(get("units"), "units", "SI")
     if units not in ("SI", "US"):
         col.error(get("units").loc, "units", "unknown unit system", "SI | US", repr(units))
+        units = "SI"
     precision = get("precision").value if get("precision") else 3
     if isinstance(precision, bool) or not isinstance(precision, int) or not 2 <= precision <= 8:
         col.error(get("precision").loc, "precision", "precision out of range",
-                  "a whole number of significant figures from 2 to 8", repr(precision))
+                  "a whole number of significant figures from 2 to 8", _shown(get("precision")))
         precision = 3
 
-    sheet_paths = _sheet_paths(root, kv.get("sheets"), col)
-    material_files = builtin_material_files()
-    if (root / "materials.yaml").is_file():
-        material_files.append(root / "materials.yaml")
-    materials = load_materials(material_files, root, col)
+    sheet_names = _sheet_names(files, kv.get("sheets"), col)
+    materials = load_materials(builtin_material_files(), LIBRARY_DIR, col)
+    if files.exists("materials.yaml"):
+        materials.update(load_materials(["materials.yaml"], None, col, files))
     named = load_named_values()
 
     known_kinds = registry()
     sheets: list[SheetSpec] = []
     seen_ids: dict[str, Location] = {}
-    for path in sheet_paths:
-        sheet = _sheet(path, root, col, known_kinds)
+    unreadable: set[str] = set()
+    for name in sheet_names:
+        sheet = _sheet(files, name, col, known_kinds, unreadable)
         if sheet is None:
             continue
         if sheet.id in seen_ids:
             col.error(sheet.loc, f"{sheet.id}", "sheet id used twice",
                       "a unique sheet id", f"{sheet.id} (also at {seen_ids[sheet.id]})")
+            continue
         seen_ids[sheet.id] = sheet.loc
         sheets.append(sheet)
 
     reviewer, comments = "", []
-    input_files = [project_file] + sheet_paths
-    if (root / "materials.yaml").is_file():
-        input_files.append(root / "materials.yaml")
-    if (root / "review.yaml").is_file():
-        input_files.append(root / "review.yaml")
-        reviewer, comments = _review(root / "review.yaml", root, col)
+    input_files = ["project.yaml"] + sheet_names
+    if files.exists("materials.yaml"):
+        input_files.append("materials.yaml")
+    if files.exists("review.yaml"):
+        input_files.append("review.yaml")
+        reviewer, comments = _review(files, col)
         targets = {s.id for s in sheets} | {b.key for s in sheets for b in s.blocks}
         for c in comments:
-            if c.on not in targets:
+            if c.on not in targets and not _under(c.on, unreadable):
                 col.error(c.loc, "review.comments.on", f"comment on unknown sheet or block "
                           f"'{c.on}'", "an existing SHEET or SHEET.block", repr(c.on),
                           did_you_mean(c.on, targets))
 
-    if col.errors:
-        raise InputErrors(col.errors)
-    return Project(root=root, number=_text(pv.get("number")), title=_text(pv.get("title")),
-                   client=_text(pv.get("client")), site=_text(pv.get("site")),
-                   organisation=_text(pv.get("organisation")),
-                   package_number=_text(kv.get("number")), package_title=_text(kv.get("title")),
-                   revisions=revisions, units=units, precision=precision, sheets=sheets,
-                   materials=materials, named=named, reviewer=reviewer, comments=comments,
-                   input_files=input_files)
+    project = Project(root=getattr(files, "root", None), number=col.text(pv.get("number"),
+                                                                         "project.number"),
+                      title=col.text(pv.get("title"), "project.title"),
+                      client=col.text(pv.get("client"), "project.client"),
+                      site=col.text(pv.get("site"), "project.site"),
+                      organisation=col.text(pv.get("organisation"), "project.organisation"),
+                      package_number=col.text(kv.get("number"), "package.number"),
+                      package_title=col.text(kv.get("title"), "package.title"),
+                      revisions=revisions, units=units, precision=precision, sheets=sheets,
+                      materials=materials, named=named, reviewer=reviewer, comments=comments,
+                      input_files=input_files, files=files, unreadable=unreadable)
+    return project, col.errors
 
 
-def _revisions(node: Node | None, col: _Collector, loc: Location) -> list[Revision]:
+def _under(key: str, unreadable: set[str]) -> bool:
+    return key in unreadable or key.split(".")[0] in unreadable
+
+
+def _revisions(node: Node | None, col: Collector) -> list[Revision]:
     if node is None:
         return [Revision("-", "", "")]
     if not node.is_list or not node.value:
         col.error(node.loc, "revisions", "revisions must be a list, oldest first",
-                  "a list of {rev, date, purpose, by, checked, approved}", repr(plain(node)))
+                  "a list of {rev, date, purpose, by, checked, approved}", _shown(node))
         return [Revision("-", "", "")]
     out = []
     for i, item in enumerate(node.value):
@@ -245,76 +315,120 @@ def _revisions(node: Node | None, col: _Collector, loc: Location) -> list[Revisi
         if not col.keys(item, _REVISION_KEYS, where, required=("rev", "date", "purpose")):
             continue
         v = item.value
-        out.append(Revision(*(_text(v.get(k)) for k in _REVISION_KEYS)))
+        out.append(Revision(rev=col.text(v.get("rev"), f"{where}.rev"),
+                            date=col.date(v.get("date"), f"{where}.date"),
+                            purpose=col.text(v.get("purpose"), f"{where}.purpose"),
+                            by=col.text(v.get("by"), f"{where}.by"),
+                            checked=col.text(v.get("checked"), f"{where}.checked"),
+                            approved=col.text(v.get("approved"), f"{where}.approved")))
     return out or [Revision("-", "", "")]
 
 
-def _sheet_paths(root: Path, node: Node | None, col: _Collector) -> list[Path]:
+def _sheet_names(files: ProjectFiles, node: Node | None, col: Collector) -> list[str]:
     if node is None:
-        return sorted((root / "sheets").glob("*.yaml"))
+        return files.sheet_names()
     if not node.is_list:
-        col.error(node.loc, "package.sheets", "not a list", "a list of sheet files",
-                  repr(plain(node)))
+        col.error(node.loc, "package.sheets", "not a list", "a list of sheet files", _shown(node))
         return []
-    paths = []
+    names = []
     for item in node.value:
-        path = root / str(item.value)
-        if not path.is_file():
-            col.error(item.loc, "package.sheets", "sheet file not found",
-                      "a file inside the project folder", str(item.value))
+        if not item.is_scalar or not isinstance(item.value, str):
+            col.error(item.loc, "package.sheets", "not a file name",
+                      "a sheet file such as sheets/ew1.yaml", _shown(item))
             continue
-        paths.append(path)
-    return paths
+        name = item.value.strip()
+        if name.startswith("./"):
+            name = name[2:]
+        try:
+            files.check(name)
+        except FileProblem as problem:
+            col.error(item.loc, "package.sheets", problem.what, problem.expected, problem.got)
+            continue
+        if not files.exists(name):
+            col.error(item.loc, "package.sheets", "sheet file not found",
+                      "a file inside the project folder", repr(item.value))
+            continue
+        if name in names:
+            col.error(item.loc, "package.sheets", "sheet file listed twice", "each file once",
+                      repr(item.value))
+            continue
+        names.append(name)
+    return names
 
 
-def _sheet(path: Path, root: Path, col: _Collector, kinds) -> SheetSpec | None:
-    tree = _read(path, root, col)
+def _sheet(files: ProjectFiles, name: str, col: Collector, kinds,
+           unreadable: set[str]) -> SheetSpec | None:
+    tree = _read(files, name, col)
+    stem = Path(name).stem
     if tree is None:
+        unreadable.add(stem)
         return None
-    if not col.keys(tree, _SHEET_KEYS, path.stem, required=("title", "blocks")):
+    if not col.keys(tree, _SHEET_KEYS, stem, required=("title", "blocks")):
+        unreadable.add(stem)
         return None
     v = tree.value
-    sheet_id = _text(v.get("id"), path.stem)
+    sheet_id = col.text(v.get("id"), "id", stem) or stem
     if not _SHEET_ID.match(sheet_id):
         col.error(v["id"].loc, "id", "sheet id has characters outside [A-Za-z0-9_-]",
                   "[A-Za-z0-9_-]+", repr(sheet_id))
+        unreadable.add(stem)
+        return None
     signoff = {}
     snode = v.get("signoff")
     if snode is not None and col.keys(snode, _SIGN_ROLES, f"{sheet_id}.signoff"):
         for role, sig in snode.value.items():
-            if role in _SIGN_ROLES and col.keys(sig, _SIGN_KEYS, f"{sheet_id}.signoff.{role}",
+            where = f"{sheet_id}.signoff.{role}"
+            if role in _SIGN_ROLES and col.keys(sig, _SIGN_KEYS, where,
                                                 required=("by", "date", "rev")):
-                signoff[role] = Signature(role, *(_text(sig.value.get(k)) for k in _SIGN_KEYS))
+                sv = sig.value
+                signoff[role] = Signature(role, col.text(sv.get("by"), f"{where}.by"),
+                                          col.date(sv.get("date"), f"{where}.date"),
+                                          col.text(sv.get("rev"), f"{where}.rev"))
     blocks = []
     bnode = v.get("blocks")
     seen: dict[str, Location] = {}
     if bnode is not None and not bnode.is_list:
         col.error(bnode.loc, f"{sheet_id}.blocks", "not a list", "a list of blocks",
-                  repr(plain(bnode)))
+                  _shown(bnode))
     elif bnode is not None:
         for i, item in enumerate(bnode.value):
+            before = len(col.errors)
             block = _block(item, sheet_id, i, col, kinds)
-            if block is None:
+            if block is None or len(col.errors) > before:
+                block_id = item.value.get("id") if item.is_map else None
+                if block_id is not None and block_id.is_scalar:
+                    unreadable.add(f"{sheet_id}.{block_id.value}")
                 continue
             if block.id in seen:
                 col.error(block.loc, f"{sheet_id}.{block.id}", "block id used twice in the sheet",
                           "a unique block id", f"{block.id} (also at {seen[block.id]})")
+                unreadable.add(block.key)
+                continue
             seen[block.id] = block.loc
             blocks.append(block)
-    return SheetSpec(id=sheet_id, title=_text(v.get("title")), path=path,
-                     relpath=_relative(path, root), signoff=signoff,
-                     notes=_text(v.get("notes")), blocks=blocks, loc=tree.loc)
+    return SheetSpec(id=sheet_id, title=col.text(v.get("title"), f"{sheet_id}.title"),
+                     path=Path(name), relpath=name, signoff=signoff,
+                     notes=col.text(v.get("notes"), f"{sheet_id}.notes"), blocks=blocks,
+                     loc=tree.loc)
 
 
-def _block(node: Node, sheet_id: str, index: int, col: _Collector, kinds) -> BlockSpec | None:
+def _block(node: Node, sheet_id: str, index: int, col: Collector, kinds) -> BlockSpec | None:
     where = f"{sheet_id}.blocks[{index}]"
-    kind_node = node.get("kind") if node.is_map else None
-    declared = kinds.get(kind_node.value) if kind_node is not None else None
-    if kind_node is not None and declared is None:
-        kind = _text(kind_node)
+    if not node.is_map:
+        col.error(node.loc, where, "not a mapping", "a block {id, kind, title, inputs, ...}",
+                  _shown(node))
+        return None
+    kind_node = node.get("kind")
+    kind_name = kind_node.value if kind_node is not None and kind_node.is_scalar else None
+    if kind_node is not None and not isinstance(kind_name, str):
+        col.error(kind_node.loc, f"{where}.kind", "not a kind name", "one of " + ", ".join(kinds),
+                  _shown(kind_node))
+        return None
+    declared = kinds.get(kind_name) if kind_name is not None else None
+    if kind_name is not None and declared is None:
         block_id = _text(node.get("id"), f"blocks[{index}]")
-        col.error(kind_node.loc, f"{sheet_id}.{block_id}.kind", f"unknown kind '{kind}'",
-                  "one of " + ", ".join(kinds), repr(kind), did_you_mean(kind, kinds))
+        col.error(kind_node.loc, f"{sheet_id}.{block_id}.kind", f"unknown kind '{kind_name}'",
+                  "one of " + ", ".join(kinds), repr(kind_name), did_you_mean(kind_name, kinds))
         return None  # its other keys cannot be judged without the kind
     allowed = _BLOCK_KEYS
     if declared is not None and declared.inputs_at_block_level:
@@ -323,37 +437,23 @@ def _block(node: Node, sheet_id: str, index: int, col: _Collector, kinds) -> Blo
     if not col.keys(node, allowed, where, required=("id", "kind")):
         return None
     v = node.value
-    block_id = _text(v.get("id"))
-    if block_id and not _ID.match(block_id):
+    block_id = col.text(v.get("id"), f"{where}.id")
+    if not block_id:
+        return None
+    if not _ID.match(block_id):
         col.error(v["id"].loc, f"{where}.id", "block id has characters outside [a-z0-9_-]",
                   "[a-z0-9_-]+", repr(block_id))
-    kind = _text(v.get("kind"))
-    checks = []
-    cnode = v.get("checks")
-    if cnode is not None and not cnode.is_list:
-        col.error(cnode.loc, f"{sheet_id}.{block_id}.checks", "not a list",
-                  "a list of {result, at_most | at_least, source}", repr(plain(cnode)))
-    elif cnode is not None:
-        for j, c in enumerate(cnode.value):
-            cwhere = f"{sheet_id}.{block_id}.checks[{j}]"
-            if not col.keys(c, _CHECK_KEYS, cwhere, required=("result",)):
-                continue
-            relations = [r for r in ("at_most", "at_least") if r in c.value]
-            if len(relations) != 1:
-                col.error(c.loc, cwhere, "a check needs exactly one of at_most | at_least",
-                          "exactly one", ", ".join(relations) or "none")
-                continue
-            checks.append(CheckSpec(result=_text(c.value["result"]), relation=relations[0],
-                                    limit_node=c.value[relations[0]],
-                                    source=_text(c.value.get("source")), loc=c.loc))
+        return None
+    checks = _checks(v.get("checks"), f"{sheet_id}.{block_id}", col)
     display = {}
     dnode = v.get("display")
     if dnode is not None:
         if not dnode.is_map:
             col.error(dnode.loc, f"{sheet_id}.{block_id}.display", "not a mapping",
-                      "RESULT: unit", repr(plain(dnode)))
+                      "RESULT: unit", _shown(dnode))
         else:
-            display = {k: _text(x) for k, x in dnode.value.items()}
+            display = {k: col.text(x, f"{sheet_id}.{block_id}.display.{k}")
+                       for k, x in dnode.value.items()}
     inputs = v.get("inputs")
     if declared is not None and declared.inputs_at_block_level:
         names = {f.name for f in declared.inputs}
@@ -361,31 +461,70 @@ def _block(node: Node, sheet_id: str, index: int, col: _Collector, kinds) -> Blo
                       {k: x for k, x in node.key_locs.items() if k in names})
     if inputs is not None and inputs.value is not None and not inputs.is_map:
         col.error(inputs.loc, f"{sheet_id}.{block_id}.inputs", "not a mapping",
-                  "a mapping of input names to values", repr(plain(inputs)))
-        inputs = None
-    return BlockSpec(id=block_id, kind=kind, title=_text(v.get("title"), block_id),
+                  "a mapping of input names to values", _shown(inputs))
+        return None
+    return BlockSpec(id=block_id, kind=kind_name, title=col.text(v.get("title"),
+                                                                   f"{where}.title", block_id),
                      inputs=inputs if inputs is not None and inputs.value is not None else None,
-                     checks=checks, display=display, notes=_text(v.get("notes")), loc=node.loc,
+                     checks=checks, display=display,
+                     notes=col.text(v.get("notes"), f"{where}.notes"), loc=node.loc,
                      sheet_id=sheet_id)
 
 
-def _review(path: Path, root: Path, col: _Collector):
-    tree = _read(path, root, col)
+def _checks(cnode: Node | None, key: str, col: Collector) -> list[CheckSpec]:
+    checks: list[CheckSpec] = []
+    if cnode is None:
+        return checks
+    if not cnode.is_list:
+        col.error(cnode.loc, f"{key}.checks", "not a list",
+                  "a list of {result, at_most | at_least, source}", _shown(cnode))
+        return checks
+    for j, c in enumerate(cnode.value):
+        cwhere = f"{key}.checks[{j}]"
+        before = len(col.errors)
+        if not col.keys(c, _CHECK_KEYS, cwhere, required=("result",)):
+            continue
+        relations = [r for r in ("at_most", "at_least") if r in c.value]
+        if len(relations) != 1:
+            col.error(c.loc, cwhere, "a check needs exactly one of at_most | at_least",
+                      "exactly one", ", ".join(relations) or "none")
+            continue
+        result = col.text(c.value.get("result"), f"{cwhere}.result")
+        source = col.text(c.value.get("source"), f"{cwhere}.source")
+        if len(col.errors) > before:
+            continue
+        checks.append(CheckSpec(result=result, relation=relations[0],
+                                limit_node=c.value[relations[0]], source=source, loc=c.loc))
+    return checks
+
+
+def _review(files: ProjectFiles, col: Collector):
+    tree = _read(files, "review.yaml", col)
     if tree is None or not col.keys(tree, ("reviewer", "comments"), "review"):
         return "", []
     comments = []
     cnode = tree.value.get("comments")
+    if cnode is not None and not cnode.is_list and cnode.value is not None:
+        col.error(cnode.loc, "review.comments", "not a list",
+                  "a list of {on, by, date, text, status, response}", _shown(cnode))
+        cnode = None
     for i, c in enumerate(cnode.value if cnode is not None and cnode.is_list else []):
         where = f"review.comments[{i}]"
-        if not col.keys(c, ("on", "by", "date", "text", "status", "response"), where,
-                        required=("on", "text", "status")):
+        before = len(col.errors)
+        if not col.keys(c, _REVIEW_KEYS, where, required=("on", "text", "status")):
             continue
-        status = _text(c.value.get("status"))
-        if status not in ("open", "answered", "closed"):
-            col.error(c.value["status"].loc, f"{where}.status", "unknown status",
-                      "open | answered | closed", repr(status))
-        comments.append(ReviewComment(on=_text(c.value.get("on")), by=_text(c.value.get("by")),
-                                      date=_text(c.value.get("date")),
-                                      text=_text(c.value.get("text")), status=status,
-                                      response=_text(c.value.get("response")), loc=c.loc))
-    return _text(tree.value.get("reviewer")), comments
+        cv = c.value
+        status = col.text(cv.get("status"), f"{where}.status")
+        if status and status not in ("open", "answered", "closed"):
+            col.error(cv["status"].loc, f"{where}.status", "unknown status",
+                      "open | answered | closed", repr(status),
+                      did_you_mean(status, ("open", "answered", "closed")))
+        comment = ReviewComment(on=col.text(cv.get("on"), f"{where}.on"),
+                                by=col.text(cv.get("by"), f"{where}.by"),
+                                date=col.date(cv.get("date"), f"{where}.date"),
+                                text=col.text(cv.get("text"), f"{where}.text"), status=status,
+                                response=col.text(cv.get("response"), f"{where}.response"),
+                                loc=c.loc)
+        if len(col.errors) == before:
+            comments.append(comment)
+    return col.text(tree.value.get("reviewer"), "review.reviewer"), comments

@@ -18,7 +18,7 @@ import pint
 __all__ = [
     "ureg", "UnitProblem", "parse_unit", "parse_quantity_text", "convert", "dimension_text",
     "format_number", "format_quantity", "pretty_unit", "latex_unit", "latex_number",
-    "latex_quantity", "pretty_written", "same_dimension", "si_unit_for", "display_unit_for", "ABSOLUTE", "DIFFERENCE",
+    "latex_quantity", "pretty_written", "same_dimension", "split_quantity", "si_unit_for", "display_unit_for", "ABSOLUTE", "DIFFERENCE",
 ]
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
@@ -30,6 +30,8 @@ _LONE_ABSOLUTE = {"degC": "degC", "degF": "degF", "K": "K", "kelvin": "K", "degR
                   "celsius": "degC", "fahrenheit": "degF", "degree_Celsius": "degC",
                   "degree_Fahrenheit": "degF"}
 _LONE_DIFFERENCE = {"K", "kelvin", "delta_degC", "delta_degF", "delta_celsius", "delta_fahrenheit"}
+
+_UNIT_CHARACTERS = re.compile(r"^[A-Za-z_%0-9 ./*^()\-]+$")
 
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 
@@ -64,12 +66,16 @@ def parse_unit(text: str) -> pint.Unit:
         return ureg.dimensionless
     if text not in _LONE_ABSOLUTE:
         text = _compound_degrees_as_differences(text)
+    if len(text) > 60 or not _UNIT_CHARACTERS.match(text):
+        raise UnitProblem(f"unknown unit '{text[:60]}'", "a unit pint knows, such as m, "
+                          "W/(m*K), degC", repr(text[:60]))
     try:
-        return ureg.parse_units(text)
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, AssertionError, SyntaxError, KeyError) as exc:
+        unit = ureg.parse_units(text)
+        ureg.Quantity(1.0, unit).to_base_units()  # a unit that cannot convert is no unit
+    except Exception as exc:  # noqa: BLE001 - pint reading user text raises many kinds
         raise UnitProblem(f"unknown unit '{text}'", "a unit pint knows, such as m, W/(m*K), degC",
                           repr(text)) from exc
+    return unit
 
 
 # Names a building engineer uses for common dimensions, with the coherent SI unit of each.
@@ -171,6 +177,9 @@ def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,
         raise UnitProblem("not a quantity", f"a number and a unit in {pretty_unit(si_unit)}",
                           repr(text))
     number = float(match.group(1))
+    if not math.isfinite(number) or abs(number) > 1e100:
+        raise UnitProblem("not a finite number", "a magnitude below 1e+100",
+                          repr(match.group(1)[:30]))
     unit_text = _normalise_unit_text(match.group(2))
     target = parse_unit(si_unit)
     if unit_text in ("", "1", "dimensionless"):
@@ -201,7 +210,27 @@ def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,
     if not same_dimension(unit, target):
         raise UnitProblem("wrong dimension", dimension_text(target),
                           f"{dimension_text(unit)} in {str(text)!r}")
-    return float(ureg.Quantity(number, unit).to(target).magnitude), unit_text
+    try:
+        value = float(ureg.Quantity(number, unit).to(target).magnitude)
+    except (ArithmeticError, ValueError) as exc:
+        raise UnitProblem("cannot convert", f"a value in {pretty_unit(si_unit)}",
+                          f"{text!r} ({exc})") from None
+    if not math.isfinite(value):
+        raise UnitProblem("not a finite number", "a finite value", repr(text))
+    return value, unit_text
+
+
+def split_quantity(text: str) -> tuple[float, str]:
+    """Return (number, unit text) of a quantity text such as '240 m^2'; the number finite."""
+    match = _NUMBER.match(str(text))
+    if not match:
+        raise UnitProblem("not a quantity", "a number and a unit, such as '240 m^2'",
+                          repr(str(text)[:60]))
+    number = float(match.group(1))
+    if not math.isfinite(number) or abs(number) > 1e100:
+        raise UnitProblem("not a finite number", "a magnitude below 1e+100",
+                          repr(match.group(1)[:30]))
+    return number, _normalise_unit_text(match.group(2))
 
 
 def convert(value: float, from_unit: str, to_unit: str) -> float:

@@ -31,6 +31,13 @@ def write_project(root: Path, sheets: dict[str, str], project_yaml: str = PROJEC
     return root
 
 
+@pytest.fixture(autouse=True)
+def _in_tmp_path(tmp_path, monkeypatch):
+    """Run each test from its own folder, as a user runs calcdoc from beside the project:
+    messages name files relative to where the user stands."""
+    monkeypatch.chdir(tmp_path)
+
+
 @pytest.fixture
 def evaluate(tmp_path):
     """Return a function: sheets → evaluated Package (raises InputErrors on bad input)."""

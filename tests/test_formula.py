@@ -41,16 +41,67 @@ def test_expressions_outside_the_whitelist_are_refused(expr, what):
 
 
 def test_absolute_temperatures_are_in_kelvin_before_arithmetic(evaluate):
-    # Emissive power of a black surface at 21 °C: σ·(294.15 K)⁴ = 424.5 W/m²
+    # Emissive power of a black surface at 21 °C written in kelvin: σ·(294.15 K)⁴ = 424.5 W/m²
     # (Stefan–Boltzmann law; σ = 5.670374419e-8 W/(m²·K⁴), CODATA 2018).
-    package = evaluate(sheet("      T: 21 degC\n      T_o: 68 degF",
+    package = evaluate(sheet("      T: 294.15 K\n      T_c: 21 degC\n      T_o: 68 degF",
                              '      - {name: E, expr: "sigma * T**4", unit: W/m^2}\n'
-                             '      - {name: dT, expr: "T - T_o", unit: K}'))
+                             '      - {name: dT, expr: "T_c - T_o", unit: K}'))
     results = package.block("F1.calc").output.results
     assert results["E"].value == pytest.approx(Stefan_Boltzmann * 294.15 ** 4, rel=1e-12)
     assert results["E"].value == pytest.approx(424.5, abs=0.1)
-    # 21 °C − 68 °F = 294.15 K − 293.15 K = 1 K (NIST SP 811 B.9 for °F)
+    # 21 °C − 68 °F = 294.15 K − 293.15 K = 1 K (NIST SP 811 B.9 for °F), a difference
     assert results["dT"].value == pytest.approx(1.0, abs=1e-9)
+    assert results["dT"].spec.temperature == "difference"
+
+
+@pytest.mark.parametrize("expr, what", [
+    ("U * A * dT", "is multiplied"),
+    ("Q / dT", "a divisor"),
+    ("dT ** 2", "raised to a power"),
+    ("sqrt(dT)", "raised to a power"),
+    ("-dT", "negated"),
+])
+def test_offset_temperature_in_a_product_is_refused__silent_wrong_answer_class(
+        errors_of, expr, what):
+    # 23 °C is 296.15 K: U·A·dT with dT written '23 degC' would silently be 12.9 times the loss
+    # a difference of 23 K gives. An absolute temperature written in °C is refused in a product,
+    # a quotient, a power and a negation (issue: right or refused).
+    errors = errors_of(sheet("      U: 0.3 W/(m^2*K)\n      A: 100 m^2\n"
+                                    "      Q: 690 W\n      dT: 23 degC",
+                                    f'      - {{name: X, expr: "{expr}", unit: "1"}}'))
+    assert len(errors) == 1
+    assert f"an absolute temperature {what} (expected a temperature difference, got " \
+           "dT = 23 °C); hint: write a difference as '23 K' or '23 delta_degC'" in errors[0] \
+        or f"an absolute temperature is {what} (expected a temperature difference, got " \
+           "dT = 23 °C); hint: write a difference as '23 K' or '23 delta_degC'" in errors[0]
+
+
+def test_offset_temperatures_combine_as_engineers_expect__absolute_and_difference(evaluate):
+    # θ_i − θ_e of two absolute temperatures is a difference that may be multiplied; an
+    # absolute temperature plus a difference stays absolute (common practice).
+    package = evaluate(sheet("      U: 0.3 W/(m^2*K)\n      A: 100 m^2\n"
+                             "      theta_i: 20 degC\n      theta_e: -3 degC\n      rise: 2 K",
+                             '      - {name: Q, expr: "U * A * (theta_i - theta_e)", unit: W}\n'
+                             '      - {name: theta_s, expr: "theta_e + rise", unit: degC}'))
+    results = package.block("F1.calc").output.results
+    assert results["Q"].value == pytest.approx(0.3 * 100 * 23)  # 690 W, hand calculation
+    assert results["theta_s"].value == pytest.approx(273.15 - 1.0)
+    assert results["theta_s"].spec.temperature == "absolute"
+
+
+def test_difference_given_an_absolute_unit_is_refused(errors_of):
+    # A difference printed in °C would read 20 K as −253 °C.
+    errors = errors_of(sheet("      a: 20 degC\n      b: 0 degC",
+                                    '      - {name: d, expr: "a - b", unit: degC}'))
+    assert "a temperature difference given an absolute unit" in errors[0]
+    assert errors[0].endswith("hint: write the unit as K or delta_degC")
+
+
+def test_two_absolute_temperatures_added_is_refused(errors_of):
+    errors = errors_of(sheet("      a: 20 degC\n      b: 0 degC",
+                                    '      - {name: m, expr: "(a + b) / 2", unit: degC}'))
+    assert "two absolute temperatures are added" in errors[0]
+    assert errors[0].endswith("hint: a mean temperature is T_1 + (T_2 - T_1) / 2")
 
 
 def test_units_convert_through_steps(evaluate):
@@ -80,7 +131,7 @@ def test_degC_per_degree_inside_compound_given(evaluate):
     ("exp(x * 1000)", "result too large or not a number (expected exp of at most 230, "
                       "got 2000.0)"),
     ("10 ** 90 * 10 ** 90", "result too large or not a number (expected a magnitude below "
-                            "1e+100, got 1e+180)"),
+                            "1e+100, got 1e+180 from 10 ** 90 * 10 ** 90)"),
 ])
 def test_huge_powers_and_unknown_names_are_located_errors(errors_of, expr, message):
     errors = errors_of(sheet("      x: 2", f'      - {{name: r, expr: "{expr}", unit: "1"}}'))

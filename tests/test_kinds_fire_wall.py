@@ -10,7 +10,7 @@ from scipy.special import erfc
 
 from calcdoc.kinds.fire_wall import WALL_FIRE_EXPOSURE
 from calcdoc.physics.thermal_laws import LAWS
-from calcdoc.project import builtin_material_files, load_materials
+from calcdoc.project import Collector, builtin_material_files, load_materials
 
 
 def sheet(inputs: str, checks: str = "", extra_blocks: str = "") -> dict:
@@ -255,15 +255,10 @@ def test_bad_wall_inputs__one_located_error_each(errors_of, inputs, words):
 def test_fire_yaml__entries_cited_and_laws_registered():
     # Every library material carries a source (FORMAT.md); law entries name a registered law,
     # and both concrete names share EN 1992-1-2 §3.3 (thermal aliases).
-    class Collector:
-        errors = []
-
-        def error(self, *args):
-            self.errors.append(args)
-
     files = [p for p in builtin_material_files() if p.name == "fire.yaml"]
-    materials = load_materials(files, files[0].parent, Collector())
-    assert not Collector.errors
+    collector = Collector()
+    materials = load_materials(files, files[0].parent, collector)
+    assert not collector.errors
     for name, entry in materials.items():
         assert entry["source"]
         if "law" in entry:

@@ -20,7 +20,8 @@ from calcdoc.kinds.base import (REQUIRED, ABSOLUTE, DIFFERENCE, Field, FreeMappi
                                 Items, Kind, Text, _Invalid, did_you_mean)
 from calcdoc.located import Node, plain
 from calcdoc.units import (UnitProblem, dimension_text, format_quantity, latex_quantity,
-                           parse_quantity_text, parse_unit, si_unit_for, ureg)
+                           parse_quantity_text, parse_unit, pretty_written, si_unit_for,
+                           split_quantity, ureg)
 
 __all__ = ["KINDS", "parse_expression", "to_latex", "FUNCTIONS"]
 
@@ -35,9 +36,23 @@ _GREEK = {"alpha", "beta", "gamma", "delta", "epsilon", "varepsilon", "zeta", "e
           "Psi", "Omega", "Sigma", "Pi"}
 
 
+MAX_EXPRESSION_CHARS = 500
+"""Longest expression accepted; a long working is several steps, which the report can show."""
+
+MAX_EXPRESSION_DEPTH = 40
+"""Deepest nesting of operations and brackets in one expression."""
+
+_OPERATOR_HINTS = {ast.BitXor: "write ** for a power, e.g. 'x ** 2'",
+                   ast.FloorDiv: "write / for a division", ast.Mod: None, ast.MatMult: None}
+
+
 class ExpressionError(ValueError):
-    def __init__(self, what: str, expected: str, got: str):
-        self.what, self.expected, self.got = what, expected, got
+    """An expression that is not allowed; ``offset`` is the character it concerns."""
+
+    def __init__(self, what: str, expected: str, got: str, offset: int = 0,
+                 hint: str | None = None):
+        self.what, self.expected, self.got, self.offset, self.hint = what, expected, got, \
+            offset, hint
         super().__init__(what)
 
 
@@ -46,46 +61,112 @@ class Expression:
     text: str
     tree: ast.Expression
     loc: Location
+    node: Node | None = None
+
+    def loc_at(self, ast_node) -> Location:
+        """Return the location of an operation inside the expression, for a caret."""
+        offset = getattr(ast_node, "col_offset", 0) or 0
+        return self.node.loc_at(offset) if self.node is not None else self.loc
+
+
+def _depth(tree: ast.AST) -> int:
+    """Return the nesting depth of a tree, counted without recursion."""
+    deepest, stack = 0, [(tree, 1)]
+    while stack:
+        node, depth = stack.pop()
+        deepest = max(deepest, depth)
+        stack.extend((child, depth + 1) for child in ast.iter_child_nodes(node))
+    return deepest
+
+
+def _bracket_depth(text: str) -> int:
+    depth = deepest = 0
+    for ch in text:
+        depth += ch == "("
+        deepest = max(deepest, depth)
+        depth -= ch == ")"
+    return deepest
 
 
 def parse_expression(text: str) -> ast.Expression:
     """Return the checked AST of an expression; raise ExpressionError for anything not allowed."""
+    text = str(text)
+    if len(text) > MAX_EXPRESSION_CHARS:
+        raise ExpressionError("expression too long", f"at most {MAX_EXPRESSION_CHARS} "
+                              "characters (split it into steps)", f"{len(text)} characters")
+    if "\n" in text or "\r" in text:
+        raise ExpressionError("an expression is one line", "one line", "a line break")
+    if _bracket_depth(text) > MAX_EXPRESSION_DEPTH:
+        raise ExpressionError("brackets nested too deeply", f"at most {MAX_EXPRESSION_DEPTH} "
+                              "levels", f"{_bracket_depth(text)} levels")
     try:
-        tree = ast.parse(str(text), mode="eval")
+        tree = ast.parse(text, mode="eval")
     except SyntaxError as exc:
+        hint = "write ** for a power, e.g. 'x ** 2'" if "^" in text else None
         raise ExpressionError("not a valid expression", "an expression such as 'U * A * dT'",
-                              f"{text!r} ({exc.msg})") from None
+                              f"{text!r} ({exc.msg})", max((exc.offset or 1) - 1, 0),
+                              hint) from None
+    except (ValueError, MemoryError, RecursionError) as exc:
+        raise ExpressionError("not a valid expression", "an expression such as 'U * A * dT'",
+                              f"{text!r} ({type(exc).__name__})") from None
+    if _depth(tree) > MAX_EXPRESSION_DEPTH:
+        raise ExpressionError("expression nested too deeply", f"at most {MAX_EXPRESSION_DEPTH} "
+                              "levels of operations (split it into steps)",
+                              f"{_depth(tree)} levels")
     for node in ast.walk(tree):
-        if isinstance(node, (ast.Expression, ast.Load, ast.operator, ast.unaryop)):
-            if isinstance(node, ast.operator) and not isinstance(
-                    node, (ast.Add, ast.Sub, ast.Mult, ast.Div, ast.Pow)):
-                raise ExpressionError("operator not allowed", "+ - * / **",
-                                      type(node).__name__)
-            if isinstance(node, ast.unaryop) and not isinstance(node, (ast.UAdd, ast.USub)):
-                raise ExpressionError("operator not allowed", "unary + or -",
-                                      type(node).__name__)
-            continue
-        if isinstance(node, (ast.BinOp, ast.UnaryOp, ast.Name)):
+        offset = getattr(node, "col_offset", 0) or 0
+        if isinstance(node, ast.BinOp) and not isinstance(
+                node.op, (ast.Add, ast.Sub, ast.Mult, ast.Div, ast.Pow)):
+            symbol = {ast.BitXor: "^", ast.FloorDiv: "//", ast.Mod: "%", ast.MatMult: "@",
+                      ast.BitAnd: "&", ast.BitOr: "|", ast.LShift: "<<",
+                      ast.RShift: ">>"}.get(type(node.op), type(node.op).__name__)
+            op_offset = _operator_offset(text, node, symbol)
+            raise ExpressionError("operator not allowed", "+ - * / **", repr(symbol),
+                                  op_offset, _OPERATOR_HINTS.get(type(node.op)))
+        if isinstance(node, ast.UnaryOp) and not isinstance(node.op, (ast.UAdd, ast.USub)):
+            raise ExpressionError("operator not allowed", "unary + or -",
+                                  type(node.op).__name__, offset)
+        if isinstance(node, (ast.Expression, ast.Load, ast.operator, ast.unaryop, ast.BinOp,
+                             ast.UnaryOp, ast.Name)):
             continue
         if isinstance(node, ast.Constant):
             if isinstance(node.value, bool) or not isinstance(node.value, (int, float)):
                 raise ExpressionError("only numbers are allowed as literals", "a number",
-                                      repr(node.value))
+                                      repr(node.value), offset)
+            if not math.isfinite(float(node.value)) or abs(float(node.value)) > MAX_MAGNITUDE:
+                raise ExpressionError("number too large", f"a magnitude below "
+                                      f"{MAX_MAGNITUDE:g}", ast.get_source_segment(text, node)
+                                      or "", offset)
             continue
         if isinstance(node, ast.Call):
             if not isinstance(node.func, ast.Name) or node.func.id not in FUNCTIONS:
                 got = node.func.id if isinstance(node.func, ast.Name) else ast.unparse(node.func)
-                raise ExpressionError("function not allowed", ", ".join(FUNCTIONS), repr(got))
+                raise ExpressionError("function not allowed", ", ".join(FUNCTIONS), repr(got),
+                                      offset)
             if node.keywords:
                 raise ExpressionError("keyword arguments are not allowed",
-                                      "positional arguments", ast.unparse(node))
+                                      "positional arguments", ast.unparse(node), offset)
+            if any(isinstance(a, ast.Starred) for a in node.args):
+                raise ExpressionError("not allowed in an expression", "plain arguments",
+                                      ast.unparse(node), offset)
             continue
         if isinstance(node, ast.Attribute):
             raise ExpressionError("attribute access is not allowed",
-                                  "names, numbers, operators and functions", ast.unparse(node))
+                                  "names, numbers, operators and functions", ast.unparse(node),
+                                  offset)
         raise ExpressionError("not allowed in an expression",
-                              "names, numbers, + - * / **, functions", type(node).__name__)
+                              "names, numbers, + - * / **, functions", type(node).__name__,
+                              offset)
     return tree
+
+
+def _operator_offset(text: str, node: ast.BinOp, symbol: str) -> int:
+    """Return where the operator of ``node`` is written (between its operands)."""
+    start = getattr(node.left, "end_col_offset", None)
+    if start is None:
+        return node.col_offset
+    found = text.find(symbol, start)
+    return found if found >= 0 else node.col_offset
 
 
 # ------------------------------------------------------------------------ LaTeX
@@ -175,111 +256,193 @@ def _number_latex(value) -> str:
 
 @dataclass
 class Given:
-    """A given value as a pint quantity (absolute temperatures in K) and how to show it."""
+    """A value as a pint quantity (absolute temperatures in K), how to show it, and whether it
+    is an absolute temperature, a temperature difference or neither (None: also a value
+    written in K, which may be either)."""
 
     quantity: pint.Quantity
     latex: str
     temperature: str | None
+    shown: str = ""  # as the report prints it, for messages
 
 
-def _evaluate(tree: ast.AST, names: dict[str, Given], loc: Location, where: str) -> pint.Quantity:
-    def fail(what, expected, got):
-        raise InputError(loc, where, what, expected, got)
+_DIFFERENCE_HINT = ("write a difference as '23 K' or '23 delta_degC', or subtract two "
+                    "temperatures (T_i - T_e); an absolute temperature in a product, such as "
+                    "sigma * T ** 4, is written in K")
 
-    def check(q):
-        magnitude = float(q.magnitude)
+
+def _evaluate(expr: "Expression", names: dict[str, Given], where: str) -> Given:
+    """Return the value of an expression with its temperature kind (absolute, difference).
+
+    Arithmetic runs on pint quantities in coherent units, so units are checked at every
+    operation. An absolute temperature written in °C or °F (or taken from an absolute result)
+    may be added to a difference, subtracted from another absolute temperature (giving a
+    difference) and compared; multiplying, dividing or raising it to a power is refused: in an
+    engineer's formula that is almost always a difference written as a temperature, and pint's
+    kelvin arithmetic would then give a silently wrong number (23 °C taken as 296 K)."""
+
+    def fail(node, what, expected, got, hint=None):
+        raise InputError(expr.loc_at(node), where, what, expected, got, hint)
+
+    def text_of(node) -> str:
+        return ast.get_source_segment(expr.text, node) or ast.unparse(node)
+
+    def check(node, q):
+        magnitude = q.magnitude
+        if isinstance(magnitude, complex):
+            fail(node, "no real value", "a real number", f"{text_of(node)} (a negative value "
+                 "to a fractional power)")
+        magnitude = float(magnitude)
         if not math.isfinite(magnitude) or abs(magnitude) > MAX_MAGNITUDE:
-            fail("result too large or not a number", f"a magnitude below {MAX_MAGNITUDE:g}",
-                 f"{magnitude:.4g}")
+            fail(node, "result too large or not a number", f"a magnitude below "
+                 f"{MAX_MAGNITUDE:g}", f"{magnitude:.4g} from {text_of(node)}")
         return q
 
-    def dimensionless(q, what):
+    def dimensionless(node, q, what):
         if not q.dimensionless:
-            fail(f"{what} needs a dimensionless argument", "dimensionless",
+            fail(node, f"{what} needs a dimensionless argument", "dimensionless",
                  dimension_text(q.units))
         return float(q.to("dimensionless").magnitude)
 
-    def go(node):
+    def refuse_absolute(node, operand, value: Given, action: str):
+        if value.temperature == ABSOLUTE:
+            fail(operand, f"an absolute temperature is {action}", "a temperature difference",
+                 f"{text_of(operand)} = {value.shown or 'an absolute temperature'}",
+                 _DIFFERENCE_HINT)
+
+    def go(node) -> Given:
         if isinstance(node, ast.Expression):
             return go(node.body)
         if isinstance(node, ast.Constant):
-            return ureg.Quantity(float(node.value), "dimensionless")
+            return Given(ureg.Quantity(float(node.value), "dimensionless"), "", None)
         if isinstance(node, ast.Name):
             if node.id in names:
-                return names[node.id].quantity
+                return names[node.id]
             if node.id in CONSTANTS:
                 value, unit, _ = CONSTANTS[node.id]
-                return ureg.Quantity(value, parse_unit(unit))
-            fail(f"unknown name '{node.id}'", "a name from given, an earlier step, pi or sigma",
-                 repr(node.id) + (f" ({did_you_mean(node.id, names)})"
-                                  if did_you_mean(node.id, names) else ""))
+                return Given(ureg.Quantity(value, parse_unit(unit)), "", None)
+            hint = did_you_mean(node.id, names)
+            fail(node, f"unknown name '{node.id}'", "a name from given, an earlier step, pi or "
+                 "sigma", repr(node.id), hint)
         if isinstance(node, ast.UnaryOp):
             value = go(node.operand)
-            return -value if isinstance(node.op, ast.USub) else value
+            if isinstance(node.op, ast.USub):
+                refuse_absolute(node, node.operand, value, "negated")
+                return Given(-value.quantity, "", value.temperature)
+            return value
         if isinstance(node, ast.BinOp):
             left, right = go(node.left), go(node.right)
-            op = type(node.op)
-            try:
-                if op is ast.Pow:
-                    exponent = dimensionless(right, "a power")
-                    if abs(exponent) > MAX_EXPONENT:
-                        fail("exponent too large", f"|exponent| <= {MAX_EXPONENT:g}",
-                             repr(exponent))
-                    if not left.dimensionless and exponent != round(exponent * 2) / 2:
-                        fail("a quantity with a unit can only be raised to a whole or half power",
-                             "a whole or half exponent", repr(exponent))
-                    if float(left.magnitude) != 0 and \
-                            abs(exponent * math.log10(abs(float(left.magnitude)))) > 100:
-                        fail("result too large or not a number",
-                             f"a magnitude below {MAX_MAGNITUDE:g}", "an overflow")
-                    return check(left ** exponent)
-                if op is ast.Add:
-                    return check(left + right)
-                if op is ast.Sub:
-                    return check(left - right)
-                if op is ast.Mult:
-                    return check(left * right)
-                if op is ast.Div:
-                    if float(right.magnitude) == 0:
-                        fail("division by zero", "a non-zero divisor", "0")
-                    return check(left / right)
-            except pint.DimensionalityError as exc:
-                fail("units do not match", dimension_text(exc.units1),
-                     dimension_text(exc.units2))
+            return binary(node, left, right)
         if isinstance(node, ast.Call):
-            name = node.func.id
-            args = [go(a) for a in node.args]
-            count = {"min": None, "max": None}.get(name, 1)
-            if count is not None and len(args) != 1:
-                fail(f"{name} takes one argument", "1 argument", f"{len(args)} arguments")
-            if name in ("min", "max"):
-                if len(args) < 2:
-                    fail(f"{name} takes two or more arguments", "2 or more", str(len(args)))
-                try:
-                    values = [a.to(args[0].units) for a in args]
-                except pint.DimensionalityError as exc:
-                    fail("units do not match", dimension_text(exc.units1),
-                         dimension_text(exc.units2))
-                return (min if name == "min" else max)(values, key=lambda q: q.magnitude)
-            a = args[0]
-            if name == "sqrt":
-                if float(a.magnitude) < 0:
-                    fail("square root of a negative value", "a value >= 0",
-                         repr(float(a.magnitude)))
-                return a ** 0.5
-            if name == "abs":
-                return abs(a)
-            x = dimensionless(a, name)
-            if name in ("log", "log10") and x <= 0:
-                fail(f"{name} of a value <= 0", "a positive argument", repr(x))
-            if name == "exp" and x > 230:
-                fail("result too large or not a number", "exp of at most 230", repr(x))
-            fn = {"exp": math.exp, "log": math.log, "log10": math.log10, "sin": math.sin,
-                  "cos": math.cos, "tan": math.tan}[name]
-            return ureg.Quantity(fn(x), "dimensionless")
-        raise ValueError(type(node).__name__)  # pragma: no cover
+            return call(node, [go(a) for a in node.args])
+        raise ValueError(type(node).__name__)  # pragma: no cover - parse_expression guards
 
-    return go(tree)
+    def binary(node, left: Given, right: Given) -> Given:
+        op = type(node.op)
+        a, b = left.quantity, right.quantity
+        kind = None
+        if op in (ast.Mult, ast.Div, ast.Pow):
+            action = {ast.Mult: "multiplied", ast.Div: "divided",
+                      ast.Pow: "raised to a power"}[op]
+            refuse_absolute(node, node.left, left, action)
+            refuse_absolute(node, node.right, right, action if op is not ast.Div else
+                            "a divisor")
+        elif op is ast.Add:
+            if left.temperature == ABSOLUTE and right.temperature == ABSOLUTE:
+                fail(node, "two absolute temperatures are added", "an absolute temperature "
+                     "plus a difference", f"{text_of(node.left)} + {text_of(node.right)}",
+                     "a mean temperature is T_1 + (T_2 - T_1) / 2")
+            kind = ABSOLUTE if ABSOLUTE in (left.temperature, right.temperature) else (
+                DIFFERENCE if DIFFERENCE in (left.temperature, right.temperature) else None)
+        else:  # Sub
+            if right.temperature == ABSOLUTE and left.temperature != ABSOLUTE:
+                fail(node, "an absolute temperature is subtracted from a difference",
+                     "an absolute temperature minus a temperature", text_of(node))
+            if left.temperature == ABSOLUTE:
+                kind = DIFFERENCE if right.temperature == ABSOLUTE else ABSOLUTE
+            elif DIFFERENCE in (left.temperature, right.temperature):
+                kind = DIFFERENCE
+        try:
+            if op is ast.Pow:
+                exponent = dimensionless(node.right, b, "a power")
+                if abs(exponent) > MAX_EXPONENT:
+                    fail(node, "exponent too large", f"|exponent| <= {MAX_EXPONENT:g}",
+                         repr(exponent))
+                if not a.dimensionless and exponent != round(exponent * 2) / 2:
+                    fail(node, "a quantity with a unit can only be raised to a whole or half "
+                         "power", "a whole or half exponent", repr(exponent))
+                base = float(a.magnitude)
+                if base == 0 and exponent < 0:
+                    fail(node, "division by zero", "a non-zero base for a negative power",
+                         text_of(node))
+                if base != 0 and abs(exponent * math.log10(abs(base))) > 100:
+                    fail(node, "result too large or not a number",
+                         f"a magnitude below {MAX_MAGNITUDE:g}", f"{text_of(node)} overflows")
+                result = a ** exponent
+            elif op is ast.Add:
+                result = a + b
+            elif op is ast.Sub:
+                result = a - b
+            elif op is ast.Mult:
+                result = a * b
+            else:
+                if float(b.magnitude) == 0:
+                    fail(node, "division by zero", "a non-zero divisor",
+                         f"{text_of(node.right)} = 0")
+                result = a / b
+        except pint.DimensionalityError as exc:
+            fail(node, "units do not match", dimension_text(exc.units1),
+                 dimension_text(exc.units2))
+        except InputError:
+            raise
+        except (ZeroDivisionError, OverflowError, FloatingPointError, ValueError) as exc:
+            fail(node, "cannot be evaluated", "a finite real result",
+                 f"{text_of(node)} ({exc})")
+        return Given(check(node, result), "", kind)
+
+    def call(node, args: list[Given]) -> Given:
+        name = node.func.id
+        if name in ("min", "max"):
+            if len(args) < 2:
+                fail(node, f"{name} takes two or more arguments", "2 or more", str(len(args)))
+            kinds = {g.temperature for g in args}
+            if ABSOLUTE in kinds and len(kinds) > 1:
+                fail(node, f"{name} of an absolute temperature and a difference",
+                     "temperatures of one kind", text_of(node))
+            try:
+                values = [g.quantity.to(args[0].quantity.units) for g in args]
+            except pint.DimensionalityError as exc:
+                fail(node, "units do not match", dimension_text(exc.units1),
+                     dimension_text(exc.units2))
+            chosen = (min if name == "min" else max)(range(len(values)),
+                                                     key=lambda i: values[i].magnitude)
+            return Given(values[chosen], "", args[chosen].temperature)
+        if len(args) != 1:
+            fail(node, f"{name} takes one argument", "1 argument", f"{len(args)} arguments")
+        value = args[0]
+        a = value.quantity
+        if name == "sqrt":
+            refuse_absolute(node, node.args[0], value, "raised to a power")
+            if float(a.magnitude) < 0:
+                fail(node, "square root of a negative value", "a value >= 0",
+                     f"{text_of(node.args[0])} = {float(a.magnitude):.4g}")
+            return Given(check(node, a ** 0.5), "", None)
+        if name == "abs":
+            return Given(abs(a), "", value.temperature)
+        x = dimensionless(node.args[0], a, name)
+        if name in ("log", "log10") and x <= 0:
+            fail(node, f"{name} of a value <= 0", "a positive argument", repr(x))
+        if name == "exp" and x > 230:
+            fail(node, "result too large or not a number", "exp of at most 230", repr(x))
+        fn = {"exp": math.exp, "log": math.log, "log10": math.log10, "sin": math.sin,
+              "cos": math.cos, "tan": math.tan}[name]
+        try:
+            result = fn(x)
+        except (ValueError, OverflowError) as exc:
+            fail(node, "cannot be evaluated", "a finite real result", f"{text_of(node)} ({exc})")
+        return Given(check(node, ureg.Quantity(result, "dimensionless")), "", None)
+
+    return go(expr.tree)
 
 
 # ------------------------------------------------------------------------ fields
@@ -306,7 +469,7 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
                                        target.si_unit, target.display, f"result {target.target}",
                                        "ref", target.target, node.loc))
         return Given(q, latex_quantity(target.value, target.si_unit, None, ctx.precision),
-                     target.temperature)
+                     target.temperature, f"{target.display} (result {target.target})")
     if node.is_map and "named" in node.value:
         entry = ctx.named.get(str(node.value["named"].value))
         if entry is None:
@@ -338,41 +501,44 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
                   repr(text))
         raise _Invalid
     if isinstance(text, (int, float)):
+        if not math.isfinite(float(text)) or abs(float(text)) > MAX_MAGNITUDE:
+            ctx.error(value_node, path, f"'{name}' is not a finite number",
+                      f"a magnitude below {MAX_MAGNITUDE:g}", repr(text))
+            raise _Invalid
         q = ureg.Quantity(float(text), "dimensionless")
         written_unit, temperature = "1", None
         latex = _number_latex(float(text)) if isinstance(text, float) else str(text)
     else:
-        number, _, unit = str(text).strip().partition(" ")
-        unit = unit.strip()
         try:
+            number, unit = split_quantity(str(text))
             if unit in _LONE_TEMPERATURES:
                 value_k, _ = parse_quantity_text(str(text), "K", ABSOLUTE)
                 q = ureg.Quantity(value_k, "K")
                 written_unit, temperature = "K", ABSOLUTE
             else:
                 u = parse_unit(unit)
-                q = ureg.Quantity(float(number), u)
-                written_unit, temperature = unit, (DIFFERENCE if str(u) in (
+                q = ureg.Quantity(number, u)
+                written_unit, temperature = unit or "1", (DIFFERENCE if str(u) in (
                     "delta_degree_Celsius", "delta_degree_Fahrenheit") else None)
                 if temperature:
                     q = q.to("K")
                     written_unit = "K"
-        except (UnitProblem, ValueError) as problem:
+        except UnitProblem as problem:
             ctx.error(value_node, path, f"'{name}' is not a quantity",
-                      "a number and a unit, such as '240 m^2'",
-                      repr(text) + (f" ({problem.what})" if isinstance(problem, UnitProblem)
-                                    else ""))
+                      "a number and a unit, such as '240 m^2'", f"{text!r} ({problem.what})",
+                      problem.hint)
             raise _Invalid from None
         latex = latex_quantity(float(q.magnitude), written_unit, None, ctx.precision)
     si = si_unit_for(written_unit)
     value_si = float(q.to(parse_unit(si)).magnitude) if si != "1" else float(
         q.to("dimensionless").magnitude)
     display = format_quantity(value_si, si, "degC" if temperature == ABSOLUTE else
-                              (written_unit if written_unit != "1" else None), ctx.precision)
+                              (written_unit if written_unit != "1" else None), ctx.precision,
+                              temperature == DIFFERENCE)
     ctx.records.append(InputRecord(path, name, str(text), value_si, si, display, source,
                                    "named" if node.is_map and "named" in node.value else "given",
                                    None, value_node.loc))
-    return Given(q, latex, temperature)
+    return Given(q, latex, temperature, pretty_written(str(text)) or display)
 
 
 @dataclass(frozen=True)
@@ -388,9 +554,10 @@ class ExpressionField(Field):
                       repr(plain(node)))
             raise _Invalid
         try:
-            return Expression(str(node.value), parse_expression(str(node.value)), node.loc)
+            return Expression(str(node.value), parse_expression(str(node.value)), node.loc,
+                              node)
         except ExpressionError as exc:
-            ctx.error(node, path, exc.what, exc.expected, exc.got)
+            ctx.error(node.loc_at(exc.offset), path, exc.what, exc.expected, exc.got, exc.hint)
             raise _Invalid from None
 
 
@@ -402,6 +569,9 @@ class UnitField(Field):
         return "unit"
 
     def convert(self, node, ctx, path):
+        if not node.is_scalar or isinstance(node.value, bool) or node.value is None:
+            ctx.error(node, path, "not a unit", "a unit such as 'kW'", repr(plain(node)))
+            raise _Invalid
         try:
             parse_unit(str(node.value))
         except UnitProblem as p:
@@ -433,18 +603,21 @@ def _compute(inp, out):
         if name in names:
             raise InputError(expr.loc, where, f"'{name}' is already defined",
                              "a new name", repr(name))
-        q = _evaluate(expr.tree, names, expr.loc, f"{out.block_key}.steps[{i}] ({name})")
-        lone = unit.strip() in _LONE_TEMPERATURES
+        where = f"{out.block_key}.steps[{i}] ({name})"
+        value = _evaluate(expr, names, where)
+        q = value.quantity
+        written = unit.strip()
+        lone = written in _LONE_TEMPERATURES
         target = parse_unit("K" if lone else unit)
         if q.dimensionality != ureg.Quantity(1.0, target).dimensionality:
-            raise InputError(expr.loc, f"{out.block_key}.steps[{i}] ({name})",
+            raise InputError(expr.loc, where,
                              "the expression's unit does not match the step's unit",
                              f"{dimension_text(target)} for '{unit}'",
                              dimension_text(q.units))
+        temperature = _step_temperature(value, written, target, expr, where)
         si = si_unit_for("K" if lone else unit)
         value_si = float(q.to(parse_unit(si)).magnitude) if si != "1" else float(
             q.to("dimensionless").magnitude)
-        temperature = ABSOLUTE if lone else None
         symbolic = to_latex(expr.tree, lambda n: symbol_latex(n) if n not in CONSTANTS
                             else CONSTANTS[n][2])
         substituted = to_latex(expr.tree, lambda n: _substitute(n, names))
@@ -455,7 +628,32 @@ def _compute(inp, out):
         names[name] = Given(ureg.Quantity(value_si, parse_unit(si)) if si != "1" else
                             ureg.Quantity(value_si, "dimensionless"),
                             latex_quantity(value_si, si, unit if not lone else "K",
-                                           out.precision), temperature)
+                                           out.precision), temperature,
+                            out.results[name].display)
+
+
+def _step_temperature(value: Given, written: str, target, expr, where: str) -> str | None:
+    """Return whether a step's result is an absolute temperature or a difference.
+
+    A step in degC or degF is absolute, in delta_degC or delta_degF a difference; a step in K
+    is what its expression gives (absolute only when built from an absolute temperature). A
+    difference declared absolute, or the reverse, is refused: it would print 20 K as −253 °C."""
+    if str(ureg.Quantity(1.0, target).dimensionality) != "[temperature]":
+        return None
+    if written in _LONE_TEMPERATURES:
+        if value.temperature == DIFFERENCE:
+            raise InputError(expr.loc, where, "a temperature difference given an absolute unit",
+                             "an absolute temperature for the unit " + written,
+                             "a difference of temperatures",
+                             "write the unit as K or delta_" + written.replace("°", "deg"))
+        return ABSOLUTE
+    if str(target) in ("delta_degree_Celsius", "delta_degree_Fahrenheit"):
+        if value.temperature == ABSOLUTE:
+            raise InputError(expr.loc, where, "an absolute temperature given a difference unit",
+                             "a temperature difference for the unit " + written,
+                             "an absolute temperature", "write the unit as degC or K")
+        return DIFFERENCE
+    return ABSOLUTE if value.temperature == ABSOLUTE else DIFFERENCE
 
 
 def _substitute(name: str, names: dict[str, Given]) -> str:
