@@ -3,17 +3,23 @@
 from __future__ import annotations
 
 import hashlib
+import io
 import json
+import logging
 import platform
-import shutil
-import tempfile
+import struct
+import zlib
+from dataclasses import dataclass, field
 from importlib import metadata
 from pathlib import Path
 
 from calcdoc import __version__
+from calcdoc.errors import InputError, InputErrors, Location
+from calcdoc.sources import safe_name
 
 __all__ = ["results_document", "manifest_document", "sha256", "verify", "diff", "dumps",
-           "FORMAT_VERSION", "LIBRARIES"]
+           "FORMAT_VERSION", "LIBRARIES", "open_archive", "Archive", "pdf_attachments",
+           "results_problem", "manifest_problem"]
 
 FORMAT_VERSION = 1
 LIBRARIES = ("numpy", "scipy", "pint", "jinja2", "markdown", "pyyaml", "weasyprint",
@@ -128,52 +134,287 @@ def compare_results(old: dict, new: dict) -> list[str]:
     return lines
 
 
-def _archived_inputs(path: Path, into: Path) -> dict:
-    """Copy the archived inputs of a build folder or a PDF into ``into``; return results.json."""
+# ----------------------------------------------------------------------------- reading archives
+#
+# A build folder or a PDF handed to verify or diff is written by a stranger. Nothing in it is
+# trusted: sizes are bounded, JSON is checked for shape before use, attachment names must be
+# plain relative names (no '..', no absolute path, no backslash, no duplicate), and the inputs
+# are evaluated from memory: verify and diff write nothing anywhere.
+
+MAX_ARCHIVE_BYTES = 512 * 1024 * 1024
+"""Largest PDF or single file read from an archive."""
+
+MAX_JSON_BYTES = 64 * 1024 * 1024
+"""Largest results.json or manifest.json read."""
+
+MAX_ATTACHMENTS = 2000
+
+
+@dataclass
+class Archive:
+    """What a build folder or a PDF holds: its input files, results and, for a folder, the
+    manifest with what checking its digests found."""
+
+    label: str
+    inputs: dict[str, bytes]
+    results: dict
+    manifest: dict | None = None
+    integrity: list[str] = field(default_factory=list)
+
+
+def _refuse(label: str, what: str, expected: str, got: str) -> InputErrors:
+    return InputErrors([InputError(Location(label), "", what, expected, got)])
+
+
+def _read_bounded(path: Path, limit: int, label: str) -> bytes:
+    try:
+        if path.is_symlink() or not path.is_file():
+            raise _refuse(label, "not a regular file", "a file", "a link, a folder or nothing")
+        size = path.stat().st_size
+        if size > limit:
+            raise _refuse(label, "file too large", f"at most {limit // (1024 * 1024)} MiB",
+                          f"{size // (1024 * 1024)} MiB")
+        return path.read_bytes()
+    except OSError as exc:
+        raise _refuse(label, "cannot read the file", "a readable file",
+                      exc.strerror or type(exc).__name__) from None
+
+
+def _json(data: bytes, label: str) -> object:
+    try:
+        return json.loads(data.decode("utf-8"))
+    except (UnicodeDecodeError, ValueError, RecursionError) as exc:
+        raise _refuse(label, "not JSON", "a JSON document written by calcdoc",
+                      type(exc).__name__) from None
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+def results_problem(doc) -> str | None:
+    """Return why ``doc`` is not a results.json of the contract, or None when it is one."""
+    if not isinstance(doc, dict):
+        return f"a {type(doc).__name__} at the top"
+    if not _is_number(doc.get("format_version")):
+        return "no format_version"
+    if not isinstance(doc.get("project"), dict) or not isinstance(doc.get("sheets"), list):
+        return "no project or no list of sheets"
+    for sheet in doc["sheets"]:
+        if not isinstance(sheet, dict) or not isinstance(sheet.get("id"), str) or \
+                not isinstance(sheet.get("blocks"), list):
+            return "a sheet without an id or a list of blocks"
+        for block in sheet["blocks"]:
+            if not isinstance(block, dict) or not isinstance(block.get("id"), str):
+                return f"a block without an id in sheet {sheet['id']!r}"
+            results = block.get("results", {})
+            if not isinstance(results, dict):
+                return f"results of {sheet['id']}.{block['id']} not a mapping"
+            for name, r in results.items():
+                si = r.get("si") if isinstance(r, dict) else None
+                if not (_is_number(si) or isinstance(si, list) and all(map(_is_number, si))):
+                    return f"result {sheet['id']}.{block['id']}.{name} without a number"
+            checks = block.get("checks", [])
+            if not isinstance(checks, list) or not all(
+                    isinstance(c, dict) and isinstance(c.get("result"), str)
+                    and isinstance(c.get("relation"), str) and isinstance(c.get("passed"), bool)
+                    for c in checks):
+                return f"checks of {sheet['id']}.{block['id']} not as written by calcdoc"
+            absent = block.get("not_reached", {})
+            if not isinstance(absent, dict):
+                return f"not_reached of {sheet['id']}.{block['id']} not a mapping"
+    return None
+
+
+def manifest_problem(doc) -> str | None:
+    """Return why ``doc`` is not a manifest.json written by calcdoc, or None."""
+    if not isinstance(doc, dict):
+        return f"a {type(doc).__name__} at the top"
+    for part in ("inputs", "outputs"):
+        entries = doc.get(part)
+        if not isinstance(entries, dict) or not all(
+                isinstance(k, str) and isinstance(v, str) and len(v) == 64
+                for k, v in entries.items()):
+            return f"no mapping of {part} to SHA-256 digests"
+    if not isinstance(doc.get("tool"), dict):
+        return "no tool versions"
+    return None
+
+
+def _checked_results(data: bytes, label: str) -> dict:
+    doc = _json(data, label)
+    problem = results_problem(doc)
+    if problem:
+        raise _refuse(label, "not a calcdoc results.json", "the results contract of FORMAT.md",
+                      problem)
+    return doc
+
+
+def open_archive(path: Path) -> Archive:
+    """Read a build folder or a PDF as a stranger's file; raise InputErrors when it is not a
+    readable calcdoc package (exit status 2)."""
+    label = str(path)
     if path.is_dir():
-        shutil.copytree(path / "inputs", into, dirs_exist_ok=True)
-        return json.loads((path / "results.json").read_text(encoding="utf-8"))
-    from pypdf import PdfReader
-    reader = PdfReader(str(path))
-    recorded = None
-    for name, contents in reader.attachments.items():
-        data = contents[0]
-        if name == "results.json":
-            recorded = json.loads(data.decode("utf-8"))
+        return _open_folder(path, label)
+    if not path.exists():
+        raise _refuse(label, "not found", "a build folder or a PDF", "nothing at that path")
+    return _open_pdf(_read_bounded(path, MAX_ARCHIVE_BYTES, label), label)
+
+
+def _open_folder(folder: Path, label: str) -> Archive:
+    manifest_path = folder / "manifest.json"
+    if not manifest_path.exists():
+        raise _refuse(f"{label}/manifest.json", "not a calcdoc build folder",
+                      "a folder with manifest.json", "no manifest.json")
+    manifest = _json(_read_bounded(manifest_path, MAX_JSON_BYTES, f"{label}/manifest.json"),
+                     f"{label}/manifest.json")
+    problem = manifest_problem(manifest)
+    if problem:
+        raise _refuse(f"{label}/manifest.json", "not a calcdoc manifest",
+                      "manifest.json as calcdoc writes it", problem)
+    integrity: list[str] = []
+    files: dict[str, bytes] = {}
+    listed = {f"inputs/{n}": h for n, h in manifest["inputs"].items()}
+    listed.update(manifest["outputs"])
+    for name, expected in sorted(listed.items()):
+        why = safe_name(name)
+        if why:
+            raise _refuse(f"{label}/manifest.json", "a file name outside the build folder",
+                          "names inside the folder", f"{name!r} ({why})")
+        path = folder / name
+        if not path.exists() and not path.is_symlink():
+            integrity.append(f"missing: {name} (listed in manifest.json)")
             continue
-        target = into / name
-        target.parent.mkdir(parents=True, exist_ok=True)
-        target.write_bytes(data)
-    if recorded is None:
-        raise ValueError(f"{path}: no results.json attached (not a calcdoc package)")
-    return recorded
+        try:
+            data = _read_bounded(path, MAX_ARCHIVE_BYTES, f"{label}/{name}")
+        except InputErrors:
+            integrity.append(f"unreadable: {name} (a link, a folder or too large)")
+            continue
+        files[name] = data
+        if sha256(data) != expected:
+            integrity.append(f"changed: {name} (its SHA-256 differs from manifest.json)")
+    for path in sorted(folder.rglob("*")):
+        name = path.relative_to(folder).as_posix()
+        if path.is_dir() and not path.is_symlink():
+            continue
+        if name not in listed and name not in ("manifest.json", _MARKER):
+            integrity.append(f"unlisted: {name} (not in manifest.json)")
+    if "results.json" not in files:
+        raise _refuse(f"{label}/results.json", "not a calcdoc build folder",
+                      "a folder with results.json", "no readable results.json")
+    results = _checked_results(files["results.json"], f"{label}/results.json")
+    inputs = {n[len("inputs/"):]: d for n, d in files.items() if n.startswith("inputs/")}
+    if "package.pdf" in files:
+        integrity.extend(_pdf_matches_folder(files["package.pdf"], inputs,
+                                             files["results.json"], label))
+    return Archive(label, inputs, results, manifest, integrity)
+
+
+_MARKER = ".calcdoc-build"
+
+
+def _pdf_matches_folder(pdf: bytes, inputs: dict, results: bytes, label: str) -> list[str]:
+    """The PDF's attachments must be the folder's inputs and results.json, byte for byte."""
+    try:
+        attached = pdf_attachments(pdf, f"{label}/package.pdf")
+    except InputErrors:
+        return ["unreadable: package.pdf (its attachments cannot be read)"]
+    lines = []
+    expected = dict(inputs, **{"results.json": results})
+    for name in sorted(set(attached) | set(expected)):
+        if name not in attached:
+            lines.append(f"package.pdf: {name} is not attached")
+        elif name not in expected:
+            lines.append(f"package.pdf: attached {name} is not in the folder")
+        elif attached[name] != expected[name]:
+            lines.append(f"package.pdf: attached {name} differs from the folder's copy")
+    return lines
+
+
+def pdf_attachments(data: bytes, label: str) -> dict[str, bytes]:
+    """Return a PDF's attached files by name, read in memory; refuse unsafe or duplicate
+    names and anything that is not a readable PDF (InputErrors)."""
+    from pypdf import PdfReader
+    from pypdf.errors import PyPdfError
+
+    if not data.startswith(b"%PDF-"):
+        raise _refuse(label, "not a PDF", "a PDF package written by calcdoc",
+                      "a file that does not start with %PDF-" if data else "an empty file")
+    logging.getLogger("pypdf").setLevel(logging.CRITICAL)  # its warnings are not ours to print
+    try:
+        reader = PdfReader(io.BytesIO(data), strict=False)
+        found = reader.attachments
+        names = list(found.keys())
+        if len(names) > MAX_ATTACHMENTS:
+            raise _refuse(label, "too many attachments", f"at most {MAX_ATTACHMENTS}",
+                          str(len(names)))
+        attached: dict[str, bytes] = {}
+        problems = []
+        for name in names:
+            contents = found[name]
+            why = safe_name(name) if isinstance(name, str) else "not text"
+            if why:
+                problems.append(f"{name!r} ({why})")
+                continue
+            if len(contents) != 1:
+                problems.append(f"{name!r} (attached {len(contents)} times)")
+                continue
+            if len(contents[0]) > MAX_JSON_BYTES:
+                problems.append(f"{name!r} (larger than {MAX_JSON_BYTES // (1024 * 1024)} MiB)")
+                continue
+            attached[name] = bytes(contents[0])
+    except InputErrors:
+        raise
+    except (PyPdfError, ValueError, KeyError, TypeError, AttributeError, IndexError,
+            AssertionError, RecursionError, OverflowError, UnicodeError, zlib.error,
+            struct.error, NotImplementedError) as exc:
+        raise _refuse(label, "not a readable PDF", "a PDF package written by calcdoc",
+                      f"{type(exc).__name__}: {str(exc)[:80]}") from None
+    if problems:
+        raise _refuse(label, "attachments with unsafe or duplicate names refused",
+                      "plain relative names, each once", "; ".join(problems[:5]))
+    return attached
+
+
+def _open_pdf(data: bytes, label: str) -> Archive:
+    attached = pdf_attachments(data, label)
+    if "results.json" not in attached:
+        raise _refuse(label, "not a calcdoc package", "a PDF with results.json attached",
+                      "no results.json attached")
+    results = _checked_results(attached.pop("results.json"), f"{label}[results.json]")
+    return Archive(label, attached, results)
+
+
+def evaluate_archive(archive: Archive):
+    """Return the fresh results.json of an archive's inputs, evaluated from memory."""
+    from calcdoc.evaluate import evaluate_folder
+    from calcdoc.sources import MemoryFiles
+    files = MemoryFiles(archive.inputs, archive.label)
+    return results_document(evaluate_folder(files))
 
 
 def verify(path: Path) -> list[str]:
-    """Re-evaluate the archived inputs of a build or PDF; return the differences found."""
-    from calcdoc.evaluate import evaluate_project
-    from calcdoc.project import load_project
-    with tempfile.TemporaryDirectory(prefix="calcdoc-verify-") as tmp:
-        root = Path(tmp) / "project"
-        root.mkdir()
-        recorded = _archived_inputs(path, root)
-        package = evaluate_project(load_project(root))
-        fresh = results_document(package)
-    lines = compare_results(recorded, fresh)
-    if recorded.get("calcdoc_version") != __version__:
-        lines.insert(0, f"note: recorded with calcdoc {recorded.get('calcdoc_version')}, "
-                        f"verified with {__version__}")
-        if len(lines) == 1:
-            return []
+    """Check a build folder's digests and re-evaluate the archived inputs of a build or PDF;
+    return every difference found (empty: it holds). Raise InputErrors for a file that is not
+    a readable calcdoc package."""
+    archive = open_archive(path)
+    fresh = evaluate_archive(archive)
+    lines = list(archive.integrity)
+    differences = compare_results(archive.results, fresh)
+    recorded_version = archive.results.get("calcdoc_version")
+    if recorded_version != __version__ and differences:
+        lines.append(f"note: recorded with calcdoc {recorded_version}, verified with "
+                     f"{__version__}; the differences below may come from the versions")
+    lines.extend(differences)
     return lines
 
 
 def diff(old: Path, new: Path) -> list[str]:
-    """Return what changed between two build folders: input files, results and checks."""
+    """Return what changed between two builds (folders or PDFs): input files, results, checks."""
+    a, b = open_archive(old), open_archive(new)
     lines = []
-    old_manifest = json.loads((old / "manifest.json").read_text(encoding="utf-8"))
-    new_manifest = json.loads((new / "manifest.json").read_text(encoding="utf-8"))
-    oi, ni = old_manifest["inputs"], new_manifest["inputs"]
+    oi = {n: sha256(d) for n, d in a.inputs.items()}
+    ni = {n: sha256(d) for n, d in b.inputs.items()}
     for name in sorted(set(oi) | set(ni)):
         if name not in oi:
             lines.append(f"+ input {name}")
@@ -181,10 +422,9 @@ def diff(old: Path, new: Path) -> list[str]:
             lines.append(f"- input {name}")
         elif oi[name] != ni[name]:
             lines.append(f"~ input {name} changed")
-    old_results = json.loads((old / "results.json").read_text(encoding="utf-8"))
-    new_results = json.loads((new / "results.json").read_text(encoding="utf-8"))
-    if old_results["project"].get("revision") != new_results["project"].get("revision"):
-        lines.append(f"~ revision: {old_results['project'].get('revision')} → "
-                     f"{new_results['project'].get('revision')}")
-    lines.extend(compare_results(old_results, new_results))
+    old_rev = a.results["project"].get("revision")
+    new_rev = b.results["project"].get("revision")
+    if old_rev != new_rev:
+        lines.append(f"~ revision: {old_rev} → {new_rev}")
+    lines.extend(compare_results(a.results, b.results))
     return lines

@@ -143,10 +143,16 @@ def cmd_verify(args) -> int:
     for line in lines:
         print(line)
     if lines:
-        print(f"{args.path}: results differ from a fresh evaluation of the archived inputs")
+        print(f"{args.path}: NOT verified — {len(lines)} difference(s) listed above")
         return 1
-    print(f"{args.path}: verified — a fresh evaluation of the archived inputs gives the "
-          f"recorded results")
+    if Path(args.path).is_dir():
+        print(f"{args.path}: verified — every file matches its SHA-256 in manifest.json, the "
+              f"PDF carries the same inputs and results, and a fresh evaluation of the archived "
+              f"inputs gives the recorded results")
+    else:
+        print(f"{args.path}: verified — a fresh evaluation of the attached inputs gives the "
+              f"attached results (the pages themselves are covered by no digest: verify the "
+              f"build folder's manifest for that)")
     return 0
 
 

@@ -19,7 +19,7 @@ from calcdoc.kinds.base import (ABSOLUTE, Choice, Field, Figure, InputRecord, Ki
                                 MaterialField, Quantity, Record, ResultSpec, Text, _Invalid,
                                 did_you_mean)
 from calcdoc.located import plain
-from calcdoc.physics import PhysicsRangeError
+from calcdoc.physics import MAX_DURATION, PhysicsRangeError
 from calcdoc.physics.firecurves import (NAMED_FIRES, FireCurve, named_fire, parametric_fire,
                                         tabulated_fire)
 from calcdoc.physics.steel import (MINIMUM_UTILISATION,
@@ -472,7 +472,7 @@ FIRE_CURVE = Kind(
                        options=("standard", "external", "hydrocarbon", "tabulated",
                                 "parametric")),
         Quantity("duration", "exposure duration (default 120 min; tabulated: the table's end)",
-                 default=None, unit="s", greater_than=0.0, display="min"),
+                 default=None, unit="s", greater_than=0.0, at_most=MAX_DURATION, display="min"),
         _PointsField("points", "tabulated curve: points [time, temperature]", default=None),
         Text("points_source", "tabulated curve: where the points come from", default=None),
         Quantity("convection_coefficient", "αc; default the curve's own: 25 standard and "
@@ -789,7 +789,7 @@ STEEL_MEMBER_HEATING = Kind(
     inputs=(
         FireField("fire", "the fire the member is exposed to"),
         Quantity("duration", "exposure duration (default: the fire's)", default=None, unit="s",
-                 greater_than=0.0, display="min"),
+                 greater_than=0.0, at_most=MAX_DURATION, display="min"),
         Quantity("section_factor", "section factor Am/V (unprotected) or Ap/V (protected), at "
                  "least 10 m⁻¹ (EN 1993-1-2 §4.2.5.1)", unit="1/m", at_least=10.0),
         Quantity("shadow_factor", "shadow factor k_sh (unprotected)", default="1",

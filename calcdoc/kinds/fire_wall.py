@@ -16,7 +16,7 @@ import numpy as np
 from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, Choice, Figure, Items, Kind, MaterialField,
                                 Quantity, ResultSpec, Text, _Invalid)
 from calcdoc.kinds.fire import FIRE_CAUTION, FireField, exposure_duration, fire_convection
-from calcdoc.physics import PhysicsRangeError
+from calcdoc.physics import MAX_DURATION, PhysicsRangeError
 from calcdoc.physics.thermal_laws import (ZERO_CELSIUS, ThermalLaw,
                                           carbon_steel_law, concrete_law,
                                           concrete_specific_heat_peak, constant_law)
@@ -651,7 +651,8 @@ WALL_FIRE_EXPOSURE = Kind(
         Quantity("fixed_temperature", "exposed surface held at this temperature (instead of a "
                  "fire)", default=None, unit="K", temperature=ABSOLUTE, greater_than=0.0),
         Quantity("duration", "exposure duration (default: the fire's; required with "
-                 "fixed_temperature)", default=None, unit="s", greater_than=0.0, display="min"),
+                 "fixed_temperature)", default=None, unit="s", greater_than=0.0,
+                 at_most=MAX_DURATION, display="min"),
         Quantity("exposed_convection", "αc on the exposed face (default: the fire's own)",
                  default=None, unit="W/(m^2*K)", at_least=0.0),
         Quantity("exposed_emissivity", "surface emissivity εm of the exposed face",

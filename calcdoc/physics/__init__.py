@@ -2,7 +2,15 @@
 
 from __future__ import annotations
 
-__all__ = ["PhysicsRangeError"]
+__all__ = ["PhysicsRangeError", "MAX_TIME_STEPS", "MAX_CELLS", "MAX_CELL_STEPS", "MAX_DURATION"]
+
+# The work a time-stepping calculation may ask for. Each is far beyond a real package (four
+# hours at 1 s steps is 14 400 steps; a 300 mm wall at 1 mm cells is 300 cells) and keeps one
+# block's calculation, with its check at half the step and half the cell, to seconds.
+MAX_TIME_STEPS = 100_000
+MAX_CELLS = 5_000
+MAX_CELL_STEPS = 20_000_000
+MAX_DURATION = 24 * 3600.0  # s: a fire exposure longer than a day is no design fire
 
 
 class PhysicsRangeError(ValueError):

@@ -21,7 +21,7 @@ from typing import Callable
 import numpy as np
 from scipy.constants import Stefan_Boltzmann
 
-from calcdoc.physics import PhysicsRangeError
+from calcdoc.physics import MAX_TIME_STEPS, PhysicsRangeError
 
 __all__ = [
     "SteelHeating",
@@ -527,6 +527,10 @@ class SteelHeating:
 
 def _time_grid(duration: float, time_step: float) -> np.ndarray:
     steps = max(1, math.ceil(duration / time_step - 1e-9))
+    if steps > MAX_TIME_STEPS:
+        raise PhysicsRangeError("time step Δt [s]", time_step,
+                                f"at most {MAX_TIME_STEPS} steps over the duration (this one "
+                                f"takes {steps})")
     return np.minimum(np.arange(steps + 1, dtype=float) * time_step, duration)
 
 

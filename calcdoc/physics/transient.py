@@ -49,7 +49,7 @@ from scipy.constants import Stefan_Boltzmann as SIGMA
 from scipy.integrate import cumulative_trapezoid
 from scipy.linalg.lapack import dgtsv
 
-from calcdoc.physics import PhysicsRangeError
+from calcdoc.physics import MAX_CELL_STEPS, MAX_CELLS, MAX_TIME_STEPS, PhysicsRangeError
 from calcdoc.physics.thermal_laws import ThermalLaw, constant_law
 
 __all__ = [
@@ -470,6 +470,16 @@ def solve_transient(
         cells = tuple(int(n) for n in cells_per_layer)
         _check("cells per layer", len(cells), len(cells) == len(layers) and min(cells) >= 1,
                "one positive count per layer")
+    total_cells = sum(cells)
+    _check("cell size", cell_size if cells_per_layer is None else total_cells,
+           total_cells <= MAX_CELLS, f"a mesh of at most {MAX_CELLS} cells (this one has "
+           f"{total_cells})")
+    steps = float(duration) / float(time_step)
+    _check("time step", time_step, steps <= MAX_TIME_STEPS,
+           f"at most {MAX_TIME_STEPS} steps over the duration (this one takes {steps:.0f})")
+    _check("time step", time_step, steps * total_cells <= MAX_CELL_STEPS,
+           f"at most {MAX_CELL_STEPS:.0e} cell-steps ({total_cells} cells × {steps:.0f} steps "
+           "here): a larger time step or cell size")
     dx = np.concatenate([np.full(n, layer.thickness / n) for n, layer in zip(cells, layers)])
     n_cells = dx.size
     layer_of_cell = np.repeat(np.arange(len(layers)), cells)
