@@ -20,7 +20,7 @@ from calcdoc.located import Node, is_date, load_yaml, plain
 from calcdoc.model import (BlockSpec, CheckSpec, Project, ReviewComment, Revision, SheetSpec,
                            Signature)
 from calcdoc.sources import DiskFiles, FileProblem, ProjectFiles
-from calcdoc.units import UnitProblem, parse_quantity_text
+from calcdoc.units import ABSOLUTE, UnitProblem, parse_quantity_text
 
 __all__ = ["load_project", "read_project", "load_materials", "load_named_values", "LIBRARY_DIR",
            "builtin_material_files", "Collector", "project_files"]
@@ -31,8 +31,28 @@ _ID = re.compile(r"^[a-z0-9_-]+$")
 _SHEET_ID = re.compile(r"^[A-Za-z0-9_-]+$")
 _MATERIAL_PROPERTIES = {"conductivity": "W/(m*K)", "density": "kg/m^3",
                         "specific_heat": "J/(kg*K)", "emissivity": "1",
-                        "resistance": "m^2*K/W"}
-_MATERIAL_TEXT = {"title", "source", "law", "notes", "category"}
+                        "resistance": "m^2*K/W", "vapour_resistance_factor": "1",
+                        "equivalent_air_thickness": "m"}
+# Range of each property: (lowest, whether the lowest itself is allowed, highest or None, the
+# expected text of the error).
+# μ is the layer's vapour resistance over that of still air of the same thickness: no material
+# passes vapour more easily than the air it displaces, so μ < 1 is a typing error, not a material.
+_PROPERTY_RANGE = {"conductivity": (0.0, False, None, "a conductivity above 0"),
+                   "density": (0.0, False, None, "a density above 0"),
+                   "specific_heat": (0.0, False, None, "a specific heat above 0"),
+                   "emissivity": (0.0, False, 1.0, "an emissivity above 0 and at most 1"),
+                   "resistance": (0.0, False, None, "a thermal resistance above 0"),
+                   "vapour_resistance_factor": (1.0, True, None, "a vapour resistance factor "
+                                                "of at least 1 (still air is 1)"),
+                   "equivalent_air_thickness": (0.0, False, None, "an equivalent air layer "
+                                                "thickness above 0")}
+_MATERIAL_CURVE = "conductivity_curve"
+_MATERIAL_TEXT = ("title", "source", "notes")
+_MATERIAL_LAW = ("law", "aggregate")  # parameters of a temperature-dependent law, read by the law
+_MATERIAL_CATEGORIES = ("envelope", "services", "fire")
+_MATERIAL_KEYS = ("title", "category", "source", "confirmed", "notes", *_MATERIAL_PROPERTIES,
+                  _MATERIAL_CURVE, *_MATERIAL_LAW)
+_PROPERTY_KEYS = ("value", "source", "confirmed")
 
 
 class Collector:
@@ -132,7 +152,12 @@ def load_materials(paths: list, root, col: Collector, files: ProjectFiles | None
     """Return materials by name, each property converted to SI; later files override earlier.
 
     ``paths`` are library files on disk (``root`` their folder) or, with ``files``, names of
-    project files."""
+    project files. A property is written as a plain quantity (``0.035 W/(m*K)``) or as
+    ``{value, source, confirmed}``. The record keeps each property's SI value under its own name
+    (a float; ``conductivity_curve`` a list of ``[T in K, λ in W/(m·K)]`` pairs) and, under
+    ``sources``, each property's source text and confirmed flag, those of the entry where the
+    property gives none. ``source`` and ``confirmed`` of the record are the entry's
+    (``confirmed`` is None when the entry does not say)."""
     materials: dict[str, dict] = {}
     for path in paths:
         if files is None:
@@ -147,33 +172,172 @@ def load_materials(paths: list, root, col: Collector, files: ProjectFiles | None
             col.error(tree.loc, "", "not a mapping of materials", "NAME: {...}", _shown(tree))
             continue
         for material, entry in tree.value.items():
-            where = f"materials.{material}"
-            if not entry.is_map:
-                col.error(entry.loc, where, "not a mapping", "{title, conductivity, source, ...}",
-                          _shown(entry))
-                continue
-            record: dict = {"name": material, "title": material, "source": ""}
-            for key, value in entry.value.items():
-                if key in _MATERIAL_PROPERTIES:
-                    if not value.is_scalar or isinstance(value.value, bool):
-                        col.error(value.loc, f"{where}.{key}", "not a quantity",
-                                  f"a quantity in {_MATERIAL_PROPERTIES[key]}", _shown(value))
-                        continue
-                    try:
-                        record[key] = parse_quantity_text(str(value.value),
-                                                          _MATERIAL_PROPERTIES[key])[0]
-                    except UnitProblem as p:
-                        col.error(value.loc, f"{where}.{key}", p.what, p.expected, p.got, p.hint)
-                elif key in _MATERIAL_TEXT:
-                    record[key] = col.text(value, f"{where}.{key}")
-                else:
-                    record[key] = plain(value)  # law parameters, read by the law
-            if not record["source"]:
-                col.error(entry.loc, where, "material without a source",
-                          "a source text (standard, handbook or product data)", "none")
-            record["file"] = tree.loc.name or tree.loc.file
-            materials[material] = record
+            record = _material(material, entry, col)
+            if record is not None:
+                record["file"] = tree.loc.name or tree.loc.file
+                materials[material] = record
     return materials
+
+
+def _material(name: str, entry: Node, col: Collector) -> dict | None:
+    where = f"materials.{name}"
+    if not entry.is_map:
+        col.error(entry.loc, where, "not a mapping", "{title, conductivity, source, ...}",
+                  _shown(entry))
+        return None
+    record: dict = {"name": name, "title": name, "source": "", "confirmed": None}
+    # The entry's own texts first: a property without a source or flag takes the entry's.
+    for key, value in entry.value.items():
+        if key in _MATERIAL_TEXT:
+            record[key] = col.text(value, f"{where}.{key}")
+        elif key in _MATERIAL_LAW:
+            record[key] = plain(value)
+        elif key == "category":
+            category = col.text(value, f"{where}.category")
+            if category not in _MATERIAL_CATEGORIES:
+                col.error(value.loc, f"{where}.category", f"unknown category '{category}'",
+                          "one of " + ", ".join(_MATERIAL_CATEGORIES), _shown(value),
+                          did_you_mean(category, _MATERIAL_CATEGORIES))
+            record["category"] = category
+        elif key == "confirmed":
+            record["confirmed"] = _flag(value, f"{where}.confirmed", col)
+        elif key not in _MATERIAL_PROPERTIES and key != _MATERIAL_CURVE:
+            col.error(entry.key_locs[key], f"{where}.{key}", f"unknown key '{key}'",
+                      "one of " + ", ".join(_MATERIAL_KEYS), repr(key),
+                      did_you_mean(key, _MATERIAL_KEYS))
+    sources: dict[str, dict] = {}
+    for key, value in entry.value.items():
+        if key not in _MATERIAL_PROPERTIES and key != _MATERIAL_CURVE:
+            continue
+        written = _property_record(value, f"{where}.{key}", key == _MATERIAL_CURVE, col)
+        if written is None:
+            continue
+        value_node, source, confirmed = written
+        si = _curve(value_node, f"{where}.{key}", col) if key == _MATERIAL_CURVE else \
+            _property_value(key, value_node, f"{where}.{key}", col)
+        if si is None:
+            continue
+        record[key] = si
+        sources[key] = {"source": source or record["source"],
+                        "confirmed": record["confirmed"] if confirmed is None else confirmed}
+    record["sources"] = sources
+    if "vapour_resistance_factor" in entry.value and "equivalent_air_thickness" in entry.value:
+        col.error(entry.key_locs["equivalent_air_thickness"], where,
+                  "both a vapour resistance factor and an equivalent air layer thickness",
+                  "one of vapour_resistance_factor (μ, a material) | equivalent_air_thickness "
+                  "(s_d, a thin product)", "both")
+    unsourced = [key for key, cited in sources.items() if not cited["source"]]
+    if not record["source"] and (unsourced or not sources):
+        col.error(entry.loc, where, "material without a source",
+                  "a source text (standard, handbook or product data)",
+                  "none for " + ", ".join(unsourced) if unsourced else "none")
+    if not record["source"] and sources and not unsourced:
+        # Every property is cited on its own: the entry's citation lists them, once each.
+        record["source"] = "; ".join(dict.fromkeys(c["source"] for c in sources.values()))
+    return record
+
+
+def _flag(node: Node, where: str, col: Collector) -> bool | None:
+    if isinstance(node.value, bool):
+        return node.value
+    col.error(node.loc, where, "not true or false", "true or false", _shown(node))
+    return None
+
+
+def _property_record(node: Node, where: str, curve: bool,
+                     col: Collector) -> tuple[Node, str, bool | None] | None:
+    """Return (value node, source text, confirmed flag) of a property in either written form."""
+    if not node.is_map:
+        return node, "", None
+    ok = True
+    for key in node.value:
+        if key not in _PROPERTY_KEYS:
+            col.error(node.key_locs[key], f"{where}.{key}", f"unknown key '{key}'",
+                      "one of " + ", ".join(_PROPERTY_KEYS), repr(key),
+                      did_you_mean(key, _PROPERTY_KEYS))
+            ok = False
+    value = node.value.get("value")
+    if value is None or value.value is None:
+        col.error(node.loc, where, "missing key 'value'",
+                  "{value, source, confirmed}" + (" with value a list of pairs" if curve else ""),
+                  "nothing")
+        return None
+    confirmed = None
+    if "confirmed" in node.value:
+        confirmed = _flag(node.value["confirmed"], f"{where}.confirmed", col)
+        ok = ok and confirmed is not None
+    return (value, _text(node.value.get("source")), confirmed) if ok else None
+
+
+def _property_value(key: str, node: Node, where: str, col: Collector) -> float | None:
+    try:
+        value = parse_quantity_text(str(node.value), _MATERIAL_PROPERTIES[key])[0]
+    except UnitProblem as p:
+        col.error(node.loc, where, p.what, p.expected, p.got, p.hint)
+        return None
+    low, low_allowed, high, expected = _PROPERTY_RANGE[key]
+    if not (value >= low if low_allowed else value > low) or (high is not None and value > high):
+        col.error(node.loc, where, "out of range", expected, _shown(node))
+        return None
+    return value
+
+
+def _curve(node: Node, where: str, col: Collector) -> list[list[float]] | None:
+    """Return a conductivity curve as [T in K, λ in W/(m·K)] pairs, temperatures increasing."""
+    if not node.is_list:
+        col.error(node.loc, where, "not a list of [temperature, conductivity] pairs",
+                  "[[T1, λ1], [T2, λ2], ...] with absolute temperatures, increasing",
+                  _shown(node))
+        return None
+    points: list[list[float]] = []
+    written: list[str] = []
+    failed = False
+    for i, item in enumerate(node.value):
+        here = f"{where}[{i}]"
+        if not item.is_list or len(item.value) != 2 or not all(v.is_scalar for v in item.value):
+            col.error(item.loc, here, "not a [temperature, conductivity] pair",
+                      "a pair such as [\"10 degC\", \"0.035 W/(m*K)\"]", _shown(item))
+            failed = True
+            continue
+        t_node, k_node = item.value
+        temperature = _curve_quantity(t_node, "K", ABSOLUTE, here, col)
+        conductivity = _curve_quantity(k_node, "W/(m*K)", None, here, col)
+        if temperature is None or conductivity is None:
+            failed = True
+            continue
+        if not temperature > 0:
+            col.error(t_node.loc, here, "out of range", "an absolute temperature above 0 K",
+                      _shown(t_node))
+            failed = True
+            continue
+        if not conductivity > 0:
+            col.error(k_node.loc, here, "out of range", "a conductivity above 0",
+                      _shown(k_node))
+            failed = True
+            continue
+        if points and not temperature > points[-1][0]:
+            col.error(t_node.loc, here, "temperatures not increasing",
+                      f"a temperature above {written[-1]}, the one before", _shown(t_node))
+            failed = True
+            continue
+        points.append([temperature, conductivity])
+        written.append(str(t_node.value))
+    if len(node.value) < 2:
+        count = len(node.value)
+        col.error(node.loc, where, "too few points",
+                  "at least two [temperature, conductivity] pairs",
+                  f"{count} pair" + ("" if count == 1 else "s"))
+        return None
+    return None if failed else points
+
+
+def _curve_quantity(node: Node, unit: str, temperature: str | None, where: str,
+                    col: Collector) -> float | None:
+    try:
+        return parse_quantity_text(str(node.value), unit, temperature)[0]
+    except UnitProblem as p:
+        col.error(node.loc, where, p.what, p.expected, p.got, p.hint)
+        return None
 
 
 def load_named_values() -> dict:
