@@ -32,12 +32,13 @@ from calcdoc.physics.insulation import (
 
 C = 273.15
 # A test curve with a kink, rising steeply with temperature like a fibrous insulation.
-FIBROUS = ConductivityCurve([250.0, 300.0, 400.0, 500.0, 700.0], [0.030, 0.034, 0.045, 0.062, 0.115])
+FIBROUS = ConductivityCurve([250.0, 300.0, 400.0, 500.0, 700.0],
+                            [0.030, 0.034, 0.045, 0.062, 0.115])
 # A second, gentler test curve.
 FOAM = ConductivityCurve([240.0, 320.0, 400.0], [0.020, 0.024, 0.032])
 
 
-# --- mean conductivity -------------------------------------------------------------------------------
+# --- mean conductivity ----------------------------------------------------------------------------
 
 @pytest.mark.parametrize("T1, T2", [(300.0, 500.0), (500.0, 300.0), (290.0, 310.0), (420.0, 420.0)])
 def test_mean_conductivity__linear_law_equals_lambda_at_mean_temperature_en_iso_12241(T1, T2):
@@ -83,7 +84,7 @@ def test_mean_conductivity__malformed_curve_refused(curve_T, curve_k):
     assert caught.value.quantity == "curve"
 
 
-# --- independent numerical solutions of the radial equation -------------------------------------------
+# --- independent numerical solutions of the radial equation ---------------------------------------
 
 def _lam(curve):
     return lambda T: np.interp(T, curve.temperatures, curve.conductivities)
@@ -212,7 +213,7 @@ def test_outside_condition__exactly_one_of_coefficient_or_emissivity():
         assert caught.value.quantity == "outside_coefficient"
 
 
-# --- sizing ------------------------------------------------------------------------------------------
+# --- sizing ---------------------------------------------------------------------------------------
 
 def _q(result):
     return abs(result.flow.q_per_length)

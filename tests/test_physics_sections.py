@@ -33,7 +33,7 @@ def _dimensions(section):
             section.root_radius)
 
 
-# --- the catalogue against the Table 4.2 formulas --------------------------------------------------
+# --- the catalogue against the Table 4.2 formulas -------------------------------------------------
 
 def test_catalogue__covers_ipe_hea_heb_80_to_600_and_at_least_15_ub_and_uc():
     names = set(CATALOGUE)
@@ -138,7 +138,7 @@ def test_box_section_factor__same_as_protected_box():
     assert box_section_factor(*dims, "three_sided") == section_factor(*dims, "three_sided", "box")
 
 
-# --- refusals ----------------------------------------------------------------------------------------
+# --- refusals -------------------------------------------------------------------------------------
 
 @pytest.mark.parametrize("dims, quantity", [
     ((0.3, 0.15, 0.0, 0.0107, 0.015), "web_thickness"),

@@ -8,8 +8,8 @@ the shadow effect of eq. (4.26a). "Three sided" means the top face of the top fl
 e.g. by a slab.
 
 All lengths are in metres, areas in m², section factors in 1/m. The one function here that reads a
-file is :func:`load_section_catalogue` (the rolled-section catalogue, calcdoc/materials/sections.yaml);
-everything else is pure.
+file is :func:`load_section_catalogue` (the catalogue of rolled sections,
+calcdoc/materials/sections.yaml); everything else is pure.
 """
 
 from __future__ import annotations
@@ -448,7 +448,7 @@ class RolledSection(NamedTuple):
 
 
 def _key(designation: str) -> str:
-    """A designation reduced for lookup: upper case, no spaces, '×' as 'X', 'HE 300 A' as 'HEA300'."""
+    """A designation reduced for lookup: upper case, no spaces, '×' as 'X', 'HE 300 A' as HEA300."""
     text = re.sub(r"\s+", "", str(designation).upper().replace("×", "X"))
     match = re.fullmatch(r"HE(\d+)([AB])", text)
     return f"HE{match.group(2)}{match.group(1)}" if match else text
@@ -457,10 +457,6 @@ def _key(designation: str) -> str:
 @lru_cache(maxsize=4)
 def load_section_catalogue(path: str | Path = CATALOGUE_PATH) -> dict[str, RolledSection]:
     """Return the catalogue of rolled I-sections by designation, dimensions converted to metres.
-
-    The catalogue (calcdoc/materials/sections.yaml) gives, per family, a ``source`` text and its
-    ``sections``: h, b, tw, tf, r in mm, A in cm², surface in m²/m and ``confirmed``. This is the
-    one function of the module that reads a file; the result is cached.
 
     Parameters
     ----------
@@ -471,6 +467,13 @@ def load_section_catalogue(path: str | Path = CATALOGUE_PATH) -> dict[str, Rolle
     -------
     dict
         Designation as written → :class:`RolledSection`.
+
+    Notes
+    -----
+    The catalogue (calcdoc/materials/sections.yaml) gives, per family, a ``source`` text and its
+    ``sections``: h, b, tw, tf, r in mm, A in cm², surface in m²/m and ``confirmed`` (false until
+    checked against the printed table). This is the one function of the module that reads a file;
+    the result is cached.
 
     Examples
     --------
