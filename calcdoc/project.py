@@ -350,8 +350,12 @@ def load_named_values() -> dict:
             (tree.value.items() if tree else [])}
 
 
+# Library files that are not materials: the named trade values and the steel section catalogue.
+_NOT_MATERIALS = ("named.yaml", "sections.yaml")
+
+
 def builtin_material_files() -> list[Path]:
-    return sorted(p for p in LIBRARY_DIR.glob("*.yaml") if p.name != "named.yaml")
+    return sorted(p for p in LIBRARY_DIR.glob("*.yaml") if p.name not in _NOT_MATERIALS)
 
 
 # ----------------------------------------------------------------------------- project
