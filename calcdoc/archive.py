@@ -21,7 +21,7 @@ __all__ = ["results_document", "manifest_document", "sha256", "verify", "diff", 
            "FORMAT_VERSION", "LIBRARIES", "open_archive", "Archive", "pdf_attachments",
            "results_problem", "manifest_problem"]
 
-FORMAT_VERSION = 1
+FORMAT_VERSION = 2
 LIBRARIES = ("numpy", "scipy", "pint", "jinja2", "markdown", "pyyaml", "weasyprint",
              "matplotlib", "ziamath", "latex2mathml", "nh3")
 RELATIVE_TOLERANCE = 1e-9
@@ -37,8 +37,11 @@ def sha256(data: bytes) -> str:
 
 
 def results_document(package) -> dict:
-    """Return results.json as FORMAT.md defines it: coherent SI values at full precision."""
+    """Return results.json (format 2, docs/results-json.md): coherent SI values at full
+    precision, and every step as printed in the package."""
+    from calcdoc.render.printed import fill, print_value
     project = package.project
+    sig, system = project.precision, project.units
     sheets = []
     for sheet in package.sheets:
         blocks = []
@@ -46,23 +49,31 @@ def results_document(package) -> dict:
             out = block.output
             results = {}
             for name, r in out.results.items():
-                results[name] = {"si": r.value, "si_unit": r.spec.unit, "display": r.display}
+                value = out.value_of(name)
+                if isinstance(r.value, list):
+                    shown = ", ".join(print_value(value, sig, system, index=i).text
+                                      for i in range(len(r.value)))
+                else:
+                    shown = print_value(value, sig, system).text
+                results[name] = {"si": r.value, "si_unit": r.spec.unit, "display": shown}
             entry = {
                 "id": block.id, "kind": block.kind.name, "title": block.spec.title,
                 "results": results,
                 "checks": [{"result": c.result, "relation": c.relation, "value_si": c.value_si,
                             "limit_si": c.limit_si, "margin_si": c.margin_si,
                             "utilisation": c.utilisation, "passed": c.passed,
-                            "source": c.source, **({"note": c.note} if c.note else {})}
+                            "source": c.source,
+                            **({"note": fill(c.note, sig, system)} if c.note else {})}
                            for c in block.checks],
                 "series": {name: {"x_si": s.x, "x_unit": s.x_unit, "y_si": s.y,
                                   "si_unit": s.y_unit, "label": s.label}
                            for name, s in out.series.items()},
-                "warnings": [{"message": w["message"], "source": w["source"]}
+                "warnings": [{"message": fill(w["text"], sig, system), "source": w["source"]}
                              for w in out.warnings],
+                "steps": [s.record() for s in block.printed_steps(sig, system)],
             }
             if out.absent:
-                entry["not_reached"] = dict(out.absent)
+                entry["not_reached"] = {k: fill(v, sig, system) for k, v in out.absent.items()}
             if out.simulated_until is not None:
                 entry["simulated_until"] = out.simulated_until
             blocks.append(entry)

@@ -25,7 +25,10 @@ from calcdoc.errors import FinalRefused, InputError, InputErrors, Location
 from calcdoc.evaluate import evaluate_project
 from calcdoc.model import Package
 from calcdoc.project import read_project
-from calcdoc.render.html import TEMPLATES, package_view, render_package_html, render_site
+from calcdoc.render import status
+from calcdoc.render.html import (TEMPLATES, Drawings, package_view, render_package_html,
+                                 render_site)
+from calcdoc.render.printed import print_check
 
 __all__ = ["build", "final_refusals", "MARKER", "BuildReport", "check_output_folder", "swap_in",
            "remove_dead_temporaries"]
@@ -41,48 +44,17 @@ class BuildReport:
     files: list[str] = field(default_factory=list)
 
 
-def _same_person(a: str, b: str) -> bool:
-    """Return whether two signatures name the same person ('A. Engineer' = 'a engineer')."""
-    def norm(name: str) -> str:
-        return "".join(ch for ch in name.casefold() if ch.isalnum())
-    return bool(norm(a)) and norm(a) == norm(b)
-
-
 def final_refusals(package: Package) -> list[str]:
-    """Return every reason the package may not be issued as final (empty: it may).
+    """Return every reason the package may not be issued as final (empty: it may); the rule
+    is :func:`calcdoc.render.status.final_refusals`, the one the site and the PDF show."""
+    sig, system = package.project.precision, package.project.units
 
-    Final means: the current revision has an approver, every sheet is checked at the current
-    revision by someone other than its preparer, every check passes and no review comment is
-    open (FORMAT.md, Command line)."""
-    project = package.project
-    rev = project.revision
-    reasons = []
-    if not rev.approved.strip():
-        reasons.append(f"revision {rev.rev} has no approver (project.yaml revisions: "
-                       f"approved is empty)")
-    for sheet in package.sheets:
-        sign = sheet.spec.signoff
-        checked, prepared = sign.get("checked"), sign.get("prepared")
-        if prepared is None:
-            reasons.append(f"sheet {sheet.id} has no preparer (signoff.prepared)")
-        if checked is None:
-            reasons.append(f"sheet {sheet.id} is not checked (signoff.checked)")
-        else:
-            if checked.rev != rev.rev:
-                reasons.append(f"sheet {sheet.id} is checked at revision {checked.rev}, "
-                               f"not at the current revision {rev.rev}")
-            if prepared is not None and _same_person(prepared.by, checked.by):
-                reasons.append(f"sheet {sheet.id} is checked by its preparer ({checked.by})")
-        for block in sheet.blocks:
-            for c in block.checks:
-                if not c.passed:
-                    relation = "at most" if c.relation == "at_most" else "at least"
-                    reasons.append(f"check {block.key}.{c.result} fails: {c.value_display}, "
-                                   f"required {relation} {c.limit_display}")
-    for n, c in enumerate(project.comments, start=1):
-        if c.status == "open":
-            reasons.append(f"review comment C{n} on {c.on} is open ({c.loc}): {c.text}")
-    return reasons
+    def words(check) -> str:
+        shown = print_check(check, sig, system)
+        relation = "at most" if check.relation == "at_most" else "at least"
+        return f"{shown.value}, required {relation} {shown.limit}"
+
+    return status.final_refusals(package, words)
 
 
 def check_output_folder(out_dir: Path) -> None:
@@ -134,14 +106,15 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
             target.write_bytes(data)
         results_text = dumps(results_document(package))
         (tmp / "results.json").write_text(results_text, encoding="utf-8")
-        render_site(package_view(package, "site"), tmp)
+        drawings = Drawings(project.precision, project.units)
+        render_site(package_view(package, "site", drawings), tmp)
         timings["html"] = time.perf_counter() - t
         if pdf:
             t = time.perf_counter()
             from calcdoc.render.pdf import write_pdf  # WeasyPrint loads only when a PDF is made
             work = tmp / "assets"
             (work / "style.css").write_text((TEMPLATES / "style.css").read_text("utf-8"), "utf-8")
-            html = render_package_html(package_view(package, "pdf"))
+            html = render_package_html(package_view(package, "pdf", drawings))
             attachments = sorted(inputs.items()) + [("results.json", results_text.encode())]
             write_pdf(html, work, tmp / "package.pdf", attachments, project.revision.date,
                       digest_seed=results_text)

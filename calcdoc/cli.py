@@ -45,7 +45,12 @@ def cmd_build(args) -> int:
 def cmd_check(args) -> int:
     from calcdoc.archive import results_document
     from calcdoc.evaluate import evaluate_folder
+    from calcdoc.render.printed import fill, print_check, print_value
     package = evaluate_folder(args.project)
+    sig, system = package.project.precision, package.project.units
+
+    def shown(c):
+        return print_check(c, sig, system)
     failed = []
     if args.json:
         print(json.dumps(results_document(package), indent=1, ensure_ascii=False))
@@ -55,25 +60,30 @@ def cmd_check(args) -> int:
         for block in sheet.blocks:
             if not args.json:
                 print(f"  {block.key}  {block.spec.title}")
-                for name, r in block.output.results.items():
-                    print(f"    {name} = {r.display}")
-                for name, why in block.output.absent.items():
-                    print(f"    {name}: {why}")
-                for w in block.output.warnings:
-                    print(f"    warning: {w['message']}")
+                out = block.output
+                for name, r in out.results.items():
+                    value = out.value_of(name)
+                    text = ", ".join(print_value(value, sig, system, index=i).text
+                                     for i in range(len(r.value))) \
+                        if isinstance(r.value, list) else print_value(value, sig, system).text
+                    print(f"    {name} = {text}")
+                for name, why in out.absent.items():
+                    print(f"    {name}: {fill(why, sig, system)}")
+                for w in out.warnings:
+                    print(f"    warning: {fill(w['text'], sig, system)}")
             for c in block.checks:
                 if not c.passed:
                     failed.append((block, c))
                 if not args.json:
                     mark = "PASS" if c.passed else "FAIL"
                     rel = "<=" if c.relation == "at_most" else ">="
-                    print(f"    check {c.result}: {c.value_display} {rel} {c.limit_display}"
+                    print(f"    check {c.result}: {shown(c).value} {rel} {shown(c).limit}"
                           f"  {mark}")
     if failed:
         out = sys.stderr if args.json else sys.stdout
         print(f"{len(failed)} check(s) failed:", file=out)
         for block, c in failed:
-            print(f"  {block.key}.{c.result}: {c.value_display} against {c.limit_display}",
+            print(f"  {block.key}.{c.result}: {shown(c).value} against {shown(c).limit}",
                   file=out)
     return 1 if failed and args.strict else 0
 

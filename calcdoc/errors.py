@@ -15,6 +15,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 __all__ = ["Location", "CalcdocError", "InputError", "InputErrors", "FinalRefused",
+           "MissingInput",
            "remember_source", "source_line", "render", "EXIT_OK", "EXIT_DIFFERENCE",
            "EXIT_BAD_INPUT", "EXIT_INTERNAL"]
 
@@ -90,6 +91,15 @@ class InputErrors(CalcdocError, ValueError):
 
     def __str__(self) -> str:
         return "\n".join(str(e) for e in self.errors)
+
+
+class MissingInput(CalcdocError, ValueError):
+    """An input that only some choices need is absent (``view_factor`` for a general
+    enclosure): a kind raises it with the input's name and what it needs."""
+
+    def __init__(self, name: str, expected: str):
+        self.name, self.expected = name, expected
+        super().__init__(f"missing input '{name}' (expected {expected})")
 
 
 class FinalRefused(CalcdocError):

@@ -4,16 +4,16 @@ from __future__ import annotations
 
 import math
 
-from calcdoc.errors import InputError, InputErrors, Location
+from calcdoc.errors import InputError, InputErrors, Location, MissingInput
 from calcdoc.kinds import get_kind
-from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, BlockOutput, InputContext, Quantity,
-                                ResolvedRef, _Invalid, convert_fields, did_you_mean)
+from calcdoc.data import phrase
+from calcdoc.kinds.base import (ABSOLUTE, BlockOutput, InputContext, InvalidInput, Quantity,
+                                ResolvedRef, convert_fields, did_you_mean)
 from calcdoc.located import Node, plain
 from calcdoc.model import (BlockSpec, CheckResult, EvaluatedBlock, EvaluatedSheet, Package,
                            Project)
 from calcdoc.physics import PhysicsRangeError
-from calcdoc.units import (UnitProblem, dimension_text, format_number, format_quantity,
-                           same_dimension)
+from calcdoc.units import UnitProblem, dimension_text, same_dimension
 
 __all__ = ["evaluate_project", "evaluate_folder", "parse_ref"]
 
@@ -157,14 +157,15 @@ def _resolver(spec: BlockSpec, done: dict, failed: set):
         if result in out.series and result not in out.results:
             s = out.series[result]
             return ResolvedRef(name, None, s.y_unit, ABSOLUTE if s.y_unit == "K" else None,
-                               s.label or name, obj=s.obj)
+                               obj=s.obj)
         if result in out.results:
             r = out.results[result]
-            return ResolvedRef(name, r.value, r.spec.unit, r.spec.temperature, r.display)
+            return ResolvedRef(name, r.value, r.spec.unit, r.spec.temperature,
+                               out.display_unit(result))
         if result in out.absent:
             raise InputError(ref_node.loc, f"{spec.key}.inputs.{path}",
                              f"referenced result {name} does not exist", "an existing result",
-                             out.absent[result])
+                             out.absent[result].template)
         options = list(out.results) + list(out.series)
         raise InputError(ref_node.loc, f"{spec.key}.inputs.{path}",
                          f"unknown result '{result}' of {key}",
@@ -184,7 +185,7 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
     node = spec.inputs if spec.inputs is not None else Node({}, spec.loc)
     try:
         inp = convert_fields(kind.inputs, node, ctx, "", kind.exactly_one, kind.at_most_one)
-    except (_Invalid, _DependsOnFailed):
+    except (InvalidInput, _DependsOnFailed):
         errors.extend(ctx.errors)
         return None
     except InputError as err:
@@ -210,17 +211,21 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
                 errors.append(InputError(spec.loc, f"{spec.key}.display.{result}",
                                          "display unit of the wrong dimension",
                                          dimension_text(declared.unit), repr(unit)))
-    out = BlockOutput(kind, project.precision, spec.display, spec.key, project.units)
+    out = BlockOutput(kind, spec.display, spec.key, ctx.records)
     try:
         kind.compute(inp, out)
+    except MissingInput as exc:  # an input needed only for some choices is absent
+        errors.append(InputError(spec.loc, f"{spec.key}.inputs", f"missing input '{exc.name}'",
+                                 exc.expected, "nothing"))
+        return None
     except PhysicsRangeError as exc:
-        if exc.value is None:  # a kind's input needed only for some choices is absent
+        if exc.value is None:  # pragma: no cover - kinds raise MissingInput for this
             errors.append(InputError(spec.loc, f"{spec.key}.inputs",
                                      f"missing input '{exc.quantity}'", exc.expected, "nothing"))
-        else:
-            errors.append(InputError(_locate(exc, ctx.records, spec), spec.key,
-                                     f"{exc.quantity} is outside the range of the method",
-                                     exc.expected, _got(exc)))
+            return None
+        path = _input_path(exc, kind)
+        errors.append(InputError(_locate(path, ctx.records, spec), f"{spec.key}.inputs.{path}",
+                                 "outside the range of the method", exc.expected, _got(exc)))
         return None
     except InputError as err:
         errors.append(err)
@@ -237,23 +242,34 @@ def _got(exc) -> str | None:
     value = getattr(exc, "value", None)
     if value is None:
         return None
-    return format_number(value, 4) if isinstance(value, (int, float)) else str(value)
+    return f"{value:.4g}" if isinstance(value, (int, float)) else str(value)
 
 
-def _locate(exc, records, spec) -> Location:
-    name = getattr(exc, "quantity", None)
-    if name:
-        for r in records:
-            if r.loc is not None and (r.path == name or r.path.endswith("." + name)):
-                return r.loc
+def _input_path(exc: PhysicsRangeError, kind) -> str:
+    """Return the input a physics error is about: the kind's mapping of the function's own
+    parameter name, with the list index filled in where the error names one."""
+    path = kind.input_names.get(exc.quantity, exc.quantity)
+    if "{index}" in path:
+        path = path.format(index=exc.index if exc.index is not None else 0)
+    return path
+
+
+def _locate(path: str, records, spec) -> Location:
+    """Return where the input at ``path`` was written (the block, when it took its default)."""
+    for r in records:
+        if r.loc is not None and r.path == path:
+            return r.loc
+    for r in records:
+        if r.loc is not None and r.path.endswith("." + path):
+            return r.loc
     return spec.loc
 
 
 def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
     where = f"{spec.key}.checks.{check.result}"
-    declared = out._specs.get(check.result)
+    declared = out.declared(check.result)
     if declared is None:
-        options = list(out._specs)
+        options = [r.name for r in out.declared_results()]
         errors.append(InputError(check.loc, where, f"check on unknown result '{check.result}'",
                                  "one of " + ", ".join(options), repr(check.result),
                                  did_you_mean(check.result, options)))
@@ -272,52 +288,32 @@ def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
                      temperature=declared.temperature)
     try:
         limit = field.convert(check.limit_node, ctx, f"checks.{check.result}")
-    except (_Invalid, InputError) as exc:
+    except (InvalidInput, InputError) as exc:
         errors.extend(ctx.errors or [exc])
         return None
     source = check.source or (ctx.records[0].source if ctx.records else "")
-    shown = out.display_overrides.get(check.result) or declared.display_unit(project.units)
-    sig = project.precision
+    shown = out.display_unit(check.result)
 
     if check.result not in out.results:
-        why = out.absent.get(check.result, "not computed")
+        why = out.absent.get(check.result) or phrase("not computed")
         until = out.simulated_until
         if check.relation == "at_least" and until is not None:
             if until + 1e-9 < limit:
                 errors.append(InputError(
                     check.limit_node.loc, where,
-                    f"the check limit is beyond the simulated duration ({why})",
-                    f"a limit within {format_quantity(until, 's', 'min', sig)}",
-                    format_quantity(limit, declared.unit, shown, sig)))
+                    f"the check limit is beyond the simulated duration ({why.template})",
+                    f"a limit within {until / 60:g} min", f"{limit / 60:g} min"))
                 return None
             return CheckResult(check.result, check.relation, None, limit, declared.unit, None,
-                               None, True, source, why,
-                               format_quantity(limit, declared.unit, shown, sig), "—",
-                               note=why)
+                               None, True, source, shown, declared.temperature, note=why)
         return CheckResult(check.result, check.relation, None, limit, declared.unit, None, None,
-                           False, source, why, format_quantity(limit, declared.unit, shown, sig),
-                           "—", note=why)
+                           False, source, shown, declared.temperature, note=why)
 
     value = out.results[check.result].value
     margin = limit - value if check.relation == "at_most" else value - limit
-    passed = margin >= 0
     utilisation = None
     if declared.temperature != ABSOLUTE and limit > 0 and value is not None:
         utilisation = value / limit if check.relation == "at_most" else (
             limit / value if value > 0 else math.inf)
-    difference = declared.temperature == DIFFERENCE
-    value_text = format_quantity(value, declared.unit, shown, sig, difference)
-    limit_text = format_quantity(limit, declared.unit, shown, sig, difference)
-    while value_text == limit_text and value != limit and sig < 12:
-        sig += 1
-        value_text = format_quantity(value, declared.unit, shown, sig, difference)
-        limit_text = format_quantity(limit, declared.unit, shown, sig, difference)
-    margin_unit = "K" if declared.temperature else declared.unit
-    margin_shown = ("delta_degF" if project.units == "US" else "K") if declared.temperature \
-        else shown
     return CheckResult(check.result, check.relation, value, limit, declared.unit, margin,
-                       utilisation, passed, source, value_text, limit_text,
-                       format_quantity(margin, margin_unit, margin_shown, sig,
-                                       difference=bool(declared.temperature)))
-
-
+                       utilisation, margin >= 0, source, shown, declared.temperature)

@@ -109,6 +109,9 @@ class Project:
 
 @dataclass
 class CheckResult:
+    """A check as data: value, limit and margin in SI, the unit the result is shown in and
+    whether it is a temperature; the view layer prints them."""
+
     result: str
     relation: str
     value_si: float | None
@@ -118,10 +121,9 @@ class CheckResult:
     utilisation: float | None
     passed: bool
     source: str
-    value_display: str
-    limit_display: str
-    margin_display: str
-    note: str = ""
+    display_unit: str | None = None
+    temperature: str | None = None
+    note: Any = None  # a Phrase: why the value does not exist
 
 
 @dataclass
@@ -143,6 +145,14 @@ class EvaluatedBlock:
     @property
     def passed(self) -> bool:
         return all(c.passed for c in self.checks)
+
+    def printed_steps(self, sig: int, system: str = "SI") -> list:
+        """Return the block's steps as printed (calcdoc.render.printed), worked out once."""
+        cache = self.__dict__.setdefault("_printed", {})
+        if (sig, system) not in cache:
+            from calcdoc.render.printed import print_step
+            cache[sig, system] = [print_step(s, sig, system) for s in self.output.steps]
+        return cache[sig, system]
 
 
 @dataclass

@@ -14,6 +14,8 @@ import os
 import posixpath
 from pathlib import Path
 
+from calcdoc.errors import CalcdocError
+
 __all__ = ["ProjectFiles", "DiskFiles", "MemoryFiles", "FileProblem", "MAX_FILE_BYTES",
            "safe_name"]
 
@@ -21,7 +23,7 @@ MAX_FILE_BYTES = 1024 * 1024
 """Largest input file read (1 MiB): a sheet of hundreds of blocks is a few tens of kilobytes."""
 
 
-class FileProblem(Exception):
+class FileProblem(CalcdocError, OSError):
     """A file that cannot be read: ``what`` and ``expected``/``got`` for the message."""
 
     def __init__(self, what: str, expected: str, got: str):

@@ -15,11 +15,16 @@ from functools import lru_cache
 
 import pint
 
+from calcdoc.errors import CalcdocError
+
 __all__ = [
     "ureg", "UnitProblem", "parse_unit", "parse_quantity_text", "convert", "dimension_text",
-    "format_number", "format_quantity", "pretty_unit", "latex_unit", "latex_number",
-    "latex_quantity", "pretty_written", "same_dimension", "split_quantity", "si_unit_for", "display_unit_for", "ABSOLUTE", "DIFFERENCE",
+    "same_dimension", "split_quantity", "unit_text_of", "si_unit_for", "ABSOLUTE", "DIFFERENCE",
 ]
+
+# Unit typography is a display rule (calcdoc.render.numbers); messages here use it too.
+from calcdoc.render.numbers import normalise_unit_text as _normalise_unit_text  # noqa: E402
+from calcdoc.render.numbers import pretty_unit  # noqa: E402
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
 
@@ -36,21 +41,13 @@ _UNIT_CHARACTERS = re.compile(r"^[A-Za-z_%0-9 ./*^()\-]+$")
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 
 
-class UnitProblem(ValueError):
+class UnitProblem(CalcdocError, ValueError):
     """A unit or quantity text that cannot be read; carries expected and got for the message."""
 
     def __init__(self, what: str, expected: str | None = None, got: str | None = None,
                  hint: str | None = None):
         self.what, self.expected, self.got, self.hint = what, expected, got, hint
         super().__init__(what)
-
-
-def _normalise_unit_text(text: str) -> str:
-    text = text.strip()
-    for a, b in (("°C", "degC"), ("°F", "degF"), ("℃", "degC"), ("²", "^2"), ("³", "^3"),
-                 ("·", "*"), ("⋅", "*"), ("µ", "u"), ("Ω", "ohm")):
-        text = text.replace(a, b)
-    return text
 
 
 def _compound_degrees_as_differences(text: str) -> str:
@@ -125,34 +122,6 @@ def si_unit_for(unit: str | pint.Unit) -> str:
             return candidate
     base = ureg.Quantity(1.0, _as_multiplicative(u)).to_base_units().units
     return f"{base:~C}".replace("**", "^")
-
-
-# Display units for `units: US` (display only: computation stays in coherent SI).
-_US_UNITS = {
-    "m": "ft", "m^2": "ft^2", "m^3": "ft^3", "W": "Btu/h", "W/m^2": "Btu/(h*ft^2)",
-    "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*degF)", "m^2*K/W": "h*ft^2*degF/Btu",
-    "W/(m^2*K)": "Btu/(h*ft^2*degF)", "m*K/W": "h*ft*degF/Btu", "kg/m^3": "lb/ft^3",
-    "J/(kg*K)": "Btu/(lb*degF)", "kg": "lb", "Pa": "psi", "J/m^2": "Btu/ft^2",
-}
-_SMALL_LENGTHS = {"mm", "cm", "in", "millimeter"}
-
-
-def display_unit_for(si_unit: str, preferred: str | None, temperature: str | None,
-                     system: str = "SI") -> str:
-    """Return the unit to show a value in: the preferred one (SI) or its US counterpart."""
-    if system != "US":
-        if preferred:
-            return preferred
-        return "degC" if temperature == ABSOLUTE else si_unit
-    if temperature == ABSOLUTE:
-        return "degF"
-    if temperature == DIFFERENCE or (si_unit == "K" and temperature is None):
-        return "delta_degF"
-    if si_unit == "m" and preferred in _SMALL_LENGTHS:
-        return "in"
-    if preferred in ("min", "h", "s"):
-        return preferred
-    return _US_UNITS.get(si_unit, preferred or si_unit)
 
 
 def same_dimension(a: str | pint.Unit, b: str | pint.Unit) -> bool:
@@ -233,6 +202,12 @@ def split_quantity(text: str) -> tuple[float, str]:
     return number, _normalise_unit_text(match.group(2))
 
 
+def unit_text_of(text: str) -> str:
+    """Return the unit part of a quantity text as written ('240 m^2' → 'm^2'; '3' → '')."""
+    match = _NUMBER.match(str(text))
+    return _normalise_unit_text(match.group(2)) if match else ""
+
+
 def convert(value: float, from_unit: str, to_unit: str) -> float:
     """Return ``value`` converted between two unit texts; absolute degC/degF handled by offset."""
     if from_unit == to_unit:
@@ -245,130 +220,3 @@ def convert(value: float, from_unit: str, to_unit: str) -> float:
     return float(ureg.Quantity(value, parse_unit(f)).to(parse_unit(t)).magnitude)
 
 
-# ---------------------------------------------------------------- display
-
-_SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
-_PRETTY_NAMES = {"degC": "°C", "degF": "°F", "delta_degC": "°C", "delta_degF": "°F",
-                 "percent": "%", "ohm": "Ω", "um": "µm", "1": "", "dimensionless": ""}
-
-
-def _superscript(exponent: str) -> str:
-    if exponent == "0.5":
-        return "½"
-    return exponent.translate(_SUPERSCRIPT)
-
-
-def pretty_unit(unit: str) -> str:
-    """Return a unit text for people: 'W/(m^2*K)' → 'W/(m²·K)', 'degC' → '°C'."""
-    text = _normalise_unit_text(unit)
-    if text in _PRETTY_NAMES:
-        return _PRETTY_NAMES[text]
-    text = re.sub(r"\^\((-?[\d.]+)\)|\^(-?[\d.]+)",
-                  lambda m: _superscript(m.group(1) or m.group(2)), text)
-    text = re.sub(r"\*\*(-?\d+)", lambda m: m.group(1).translate(_SUPERSCRIPT), text)
-    text = re.sub(r"delta_deg([CF])", r"°\1", text)
-    text = re.sub(r"(?<![A-Za-z_])deg([CF])", r"°\1", text)
-    return text.replace("*", "·")
-
-
-def latex_unit(unit: str) -> str:
-    """Return the unit as upright LaTeX: 'W/(m^2*K)' → '\\mathrm{W/(m^{2}\\,K)}'."""
-    text = _normalise_unit_text(unit)
-    if text in ("", "1", "dimensionless"):
-        return ""
-    if text in ("%", "percent"):
-        return r"\%"
-    text = re.sub(r"delta_deg([CF])|(?<![A-Za-z_])deg([CF])",
-                  lambda m: "{}^{\\circ}" + (m.group(1) or m.group(2)), text)
-    text = re.sub(r"\^\((-?[\d.]+)\)|\^(-?[\d.]+)", lambda m: "^{" + (m.group(1) or m.group(2)) + "}",
-                  text)
-    text = re.sub(r"\*\*(-?\d+)", r"^{\1}", text)
-    text = text.replace("*", r"\cdot ")
-    return r"\mathrm{" + text + "}"
-
-
-def format_number(value: float, sig: int = 3) -> str:
-    """Return ``value`` with ``sig`` significant figures for a report.
-
-    Integers digits are never rounded away (12345.6 → '12346', not '12300'); very large or small
-    magnitudes use powers of ten ('1.23×10⁻⁵').
-    """
-    if value is None:
-        return "—"
-    if isinstance(value, float) and (math.isnan(value) or math.isinf(value)):
-        return str(value)
-    if value == 0:
-        return "0"
-    magnitude = math.floor(math.log10(abs(value)))
-    if magnitude >= 7 or magnitude <= -4:
-        mantissa = f"{value / 10 ** magnitude:.{max(sig - 1, 0)}f}"
-        if float(mantissa) in (10.0, -10.0):
-            magnitude += 1
-            mantissa = f"{value / 10 ** magnitude:.{max(sig - 1, 0)}f}"
-        return f"{mantissa}×10{str(magnitude).translate(_SUPERSCRIPT)}"
-    decimals = max(sig - 1 - magnitude, 0)
-    text = f"{round(value, decimals):.{decimals}f}"
-    if text.startswith("-") and float(text) == 0:
-        text = text[1:]
-    return text.replace("-", "−")
-
-
-def pretty_written(text: str) -> str | None:
-    """Return a quantity text as written, with display typography: '102.5 mm' → '102.5 mm',
-    '0.5 W/(m*degC)' → '0.5 W/(m·°C)'. None when the text is not a number and a unit."""
-    match = _NUMBER.match(str(text))
-    if not match:
-        return None
-    number = match.group(1).replace("-", "−")
-    unit = pretty_unit(match.group(2)) if match.group(2) else ""
-    if not unit:
-        return number
-    return f"{number} {unit}"
-
-
-def latex_number(value: float, sig: int = 3) -> str:
-    """Return the number as LaTeX, with powers of ten as \\times 10^{n}."""
-    text = format_number(value, sig).replace("−", "-")
-    if "×10" in text:
-        mantissa, power = text.split("×10")
-        power = power.translate(str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻", "0123456789-"))
-        return rf"{mantissa} \times 10^{{{power}}}"
-    return text
-
-
-def _kelvin_sig(value: float, unit: str, sig: int, difference: bool = False) -> int:
-    # An absolute temperature in kelvin has three integer digits: show it to 0.01 K. Callers
-    # that know they hold a difference say so; absolute temperatures below 200 K do not occur
-    # in building work, so smaller values in K are read as differences.
-    if difference or unit not in ("K", "kelvin"):
-        return sig
-    return max(sig, 5) if abs(value) >= 200 else sig
-
-
-def format_quantity(value_si: float, si_unit: str, display_unit: str | None = None,
-                    sig: int = 3, difference: bool = False) -> str:
-    """Return '0.273 W/(m²·K)' for a value held in ``si_unit``, shown in ``display_unit``.
-
-    ``difference``: the value is a temperature difference (never shown to 0.01 K)."""
-    unit = display_unit or si_unit
-    value = convert(value_si, si_unit, unit)
-    sig = _kelvin_sig(value, unit, sig, difference)
-    shown = pretty_unit(unit)
-    number = format_number(value, sig)
-    if not shown:
-        return number
-    if shown == "%":
-        return f"{number} %"
-    return f"{number} {shown}"
-
-
-def latex_quantity(value_si: float, si_unit: str, display_unit: str | None = None,
-                   sig: int = 3, difference: bool = False) -> str:
-    """Return the quantity as LaTeX with a thin space between number and unit."""
-    unit = display_unit or si_unit
-    value = convert(value_si, si_unit, unit)
-    number = latex_number(value, _kelvin_sig(value, unit, sig, difference))
-    lu = latex_unit(unit)
-    if value < 0:
-        number = f"({number})" if not lu else number
-    return f"{number}\\,{lu}" if lu else number

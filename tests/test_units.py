@@ -2,8 +2,8 @@
 
 import pytest
 
-from calcdoc.units import (UnitProblem, format_number, format_quantity, latex_unit,
-                           parse_quantity_text, pretty_unit, ureg)
+from calcdoc.units import UnitProblem, parse_quantity_text, ureg
+from calcdoc.render.numbers import format_number, format_quantity, latex_unit, pretty_unit
 
 
 def test_absolute_celsius__21_degC_is_294_15_K():

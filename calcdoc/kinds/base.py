@@ -1,34 +1,37 @@
 """What a calculation kind declares, and what its ``compute`` receives and writes.
 
 A kind is declared once, as data: its inputs (:class:`Field` objects: name, dimension, default,
-range, source of the default), its results (:class:`ResultSpec`), a ``compute(inp, out)`` function
-and optionally a ``figures(block)`` function. The validator, ``calcdoc kinds``, the report's input
-table and results.json are all driven by that declaration.
+range, source of the default) and its results (:class:`ResultSpec`), with a ``compute(inp, out)``
+function. The validator, ``calcdoc kinds``, the JSON Schema, the report's input tables and
+results.json are all driven by that declaration.
 
 ``compute`` receives ``inp``, an :class:`Inputs` mapping of coherent SI floats (lists and dicts for
 list and record fields, a material record for a material, an object for a fire), and ``out``, a
-:class:`BlockOutput` on which it records steps, results, series, notes and warnings. It never
-formats a number for people except through ``out.q`` (which uses the project's precision), and it
-never renders.
+:class:`BlockOutput` on which it records data only: results, steps written in the formula
+language over named operands, statements, notes and warnings with named values, series and
+figures (:mod:`calcdoc.data`). It never formats a number for people and never draws: the view
+layer under ``calcdoc/render`` does both, in one place.
 
 Example (a complete kind)::
 
     KIND = Kind(
         name="surface_emission", title="Emission from a grey surface",
         summary="Emissive power of a grey diffuse surface (Stefan–Boltzmann law).",
-        inputs=(Quantity("temperature", "K", "surface temperature", temperature=ABSOLUTE,
+        inputs=(Quantity("temperature", "surface temperature", unit="K", temperature=ABSOLUTE,
                          greater_than=0.0),
-                Quantity("emissivity", "1", "hemispherical emissivity", greater_than=0.0,
+                Quantity("emissivity", "hemispherical emissivity", greater_than=0.0,
                          at_most=1.0)),
         results=(ResultSpec("E", "W/m^2", "emissive power"),),
         compute=compute)
 
     def compute(inp, out):
         E = inp.emissivity * SIGMA * inp.temperature ** 4
-        out.step("E", r"\\varepsilon \\sigma T^4",
-                 rf"{out.q(inp.emissivity, '1')} \\cdot \\sigma \\cdot ({out.q(inp.temperature, 'K')})^4",
-                 E, "W/m^2", label="Emissive power", source="Stefan–Boltzmann law")
-        out.result("E", E)
+        out.step("E", "epsilon * sigma * T ** 4",
+                 {"epsilon": out.input("emissivity"), "T": out.input("temperature")},
+                 E, "W/m^2", label="Emissive power", source="Stefan–Boltzmann law", yields="E")
+
+The step is checked when it is recorded: the expression, evaluated from its operands, must give
+the value recorded, so the working printed in the package always re-does.
 """
 
 from __future__ import annotations
@@ -38,17 +41,17 @@ import math
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
-from calcdoc.errors import InputError, Location
+from calcdoc.data import FigureData, Phrase, Step, Value, phrase
+from calcdoc.errors import CalcdocError, InputError, Location
 from calcdoc.located import Node, plain
-from calcdoc.units import (ABSOLUTE, DIFFERENCE, UnitProblem, convert, dimension_text,
-                           display_unit_for, format_quantity, latex_quantity,
-                           parse_quantity_text, pretty_unit, pretty_written,
-                           same_dimension)
+from calcdoc.units import ABSOLUTE, DIFFERENCE, UnitProblem, convert, dimension_text, parse_quantity_text, same_dimension
+from calcdoc.render.numbers import display_unit_for, format_quantity, pretty_unit
 
 __all__ = [
     "REQUIRED", "ABSOLUTE", "DIFFERENCE", "Field", "Quantity", "Choice", "Text", "Items",
     "Record", "MaterialField", "FreeMapping", "ResultSpec", "Kind", "Inputs", "InputContext",
-    "InputRecord", "BlockOutput", "Step", "Series", "Figure", "ResolvedRef", "did_you_mean",
+    "InputRecord", "BlockOutput", "Step", "Series", "ResolvedRef", "did_you_mean", "Value",
+    "Phrase", "phrase", "FigureData", "InvalidInput", "StepMismatch", "convert_fields",
 ]
 
 
@@ -71,45 +74,43 @@ def did_you_mean(word: str, options) -> str | None:
 
 @dataclass
 class InputRecord:
-    """One resolved input as the report prints it: path, value as written and in SI, source."""
+    """One resolved input as data: path, the text as written, the SI value, how to show it,
+    its source and where it was written. The view layer prints it."""
 
     path: str
     meaning: str
     written: str
     si: Any
     si_unit: str
-    display: str
+    display_unit: str | None = None  # the unit to show it in; None: as written or SI
     source: str = ""
     origin: str = "given"  # given | default | ref | named | material
     ref: str | None = None
     loc: Location | None = None
+    temperature: str | None = None
+    written_unit: str | None = None  # the unit as written, when the value is a quantity
+    shown: Phrase | None = None  # how to show an input that is not a number (a fire, points)
+    item: str | None = None  # the name of the list item it belongs to (a layer's name)
+
+    def value(self) -> Value:
+        """Return the input as a :class:`Value`, printed as written where it can be."""
+        as_written = self.written if self.written_unit is not None and (
+            self.display_unit in (None, self.written_unit)) else None
+        return Value(self.si, self.si_unit, self.display_unit or self.written_unit or None,
+                     self.temperature, as_written, given=True)
 
 
 @dataclass
 class ResolvedRef:
-    """What a ``{ref: ...}`` points at: a result's SI value (or a series' object) and its unit."""
+    """What a ``{ref: ...}`` points at: a result's SI value (or a series' object), its unit,
+    and the unit the result is shown in."""
 
     target: str
     value: Any
     si_unit: str
     temperature: str | None
-    display: str
+    display_unit: str | None = None
     obj: Any = None
-
-
-@dataclass
-class Step:
-    """A formula step as a checker writes it by hand: symbol = formula = numbers = result."""
-
-    symbol: str
-    formula: str
-    substituted: str
-    value_si: Any
-    si_unit: str
-    display_unit: str
-    display: str
-    label: str = ""
-    source: str = ""
 
 
 @dataclass
@@ -124,15 +125,6 @@ class Series:
     x_label: str = "time"
     label: str = ""
     obj: Any = None
-
-
-@dataclass
-class Figure:
-    """A rendered picture for the report: SVG text and a caption."""
-
-    key: str
-    svg: str
-    caption: str
 
 
 @dataclass
@@ -161,8 +153,11 @@ class InputContext:
         return f"{base}.{self.section}.{path}" if self.section else f"{base}.{path}"
 
 
-class _Invalid(Exception):
+class InvalidInput(CalcdocError, ValueError):
     """Raised inside conversion after the error was recorded; the value is unusable."""
+
+
+_Invalid = InvalidInput  # the name the field classes below use
 
 
 # ----------------------------------------------------------------------------- fields
@@ -335,16 +330,13 @@ class Quantity(Field):
         return value
 
     def _record(self, ctx, path, written, value, written_unit, source, origin, ref=None, loc=None):
-        shown = self._display_unit(written_unit, ctx.unit_system)
         # An input is shown as the engineer wrote it (never rounded to the project precision),
         # unless it must be converted for display (US units, or a fixed display unit).
-        as_written = pretty_written(written) if shown == written_unit or (
-            not written_unit and shown == self.unit) else None
+        shown = self._display_unit(written_unit, ctx.unit_system)
         ctx.records.append(InputRecord(
             path=path, meaning=self.meaning, written=written, si=value, si_unit=self.unit,
-            display=as_written or format_quantity(value, self.unit, shown, ctx.precision,
-                                                  self.temperature == DIFFERENCE),
-            source=source, origin=origin, ref=ref, loc=loc))
+            display_unit=shown or None, source=source, origin=origin, ref=ref, loc=loc,
+            temperature=self.temperature, written_unit=written_unit))
 
     def convert(self, node: Node, ctx: InputContext, path: str):
         source = ""
@@ -395,11 +387,12 @@ class Quantity(Field):
                       f"{got} from {target.target}")
             raise _Invalid
         value = convert(target.value, target.si_unit, self.unit)
-        self._check_range(value, ctx, node, path, target.display)
+        self._check_range(value, ctx, node, path, f"{value:g} {self.unit} from {target.target}")
         ctx.records.append(InputRecord(
             path=path, meaning=self.meaning, written=f"ref {target.target}", si=value,
-            si_unit=self.unit, display=target.display, source=f"result {target.target}",
-            origin="ref", ref=target.target, loc=node.loc))
+            si_unit=self.unit, display_unit=target.display_unit,
+            source=f"result {target.target}", origin="ref", ref=target.target, loc=node.loc,
+            temperature=self.temperature))
         return value
 
     def _from_named(self, node, ctx, path):
@@ -420,11 +413,10 @@ class Quantity(Field):
             raise _Invalid from None
         self._check_range(value, ctx, node, path, entry["value"])
         ctx.records.append(InputRecord(
-            path=path, meaning=self.meaning, written=f"named {name}", si=value, si_unit=self.unit,
-            display=format_quantity(value, self.unit,
-                                    self._display_unit(written_unit, ctx.unit_system),
-                                    ctx.precision),
-            source=entry.get("source", ""), origin="named", loc=node.loc))
+            path=path, meaning=self.meaning, written=entry["value"], si=value, si_unit=self.unit,
+            display_unit=self._display_unit(written_unit, ctx.unit_system) or None,
+            source=entry.get("source", ""), origin="named", loc=node.loc,
+            temperature=self.temperature, written_unit=written_unit, ref=f"named {name}"))
         return value
 
 
@@ -442,7 +434,7 @@ class Choice(Field):
 
     def from_default(self, ctx, parent, path):
         ctx.records.append(InputRecord(path, self.meaning, str(self.default), self.default, "",
-                                       str(self.default), self.source, "default", loc=parent.loc))
+                                       source=self.source, origin="default", loc=parent.loc))
         return self.default
 
     def convert(self, node, ctx, path):
@@ -452,8 +444,7 @@ class Choice(Field):
                       " | ".join(self.options), repr(plain(node)),
                       did_you_mean(str(value), self.options) if isinstance(value, str) else None)
             raise _Invalid
-        ctx.records.append(InputRecord(path, self.meaning, value, value, "", value, "", "given",
-                                       loc=node.loc))
+        ctx.records.append(InputRecord(path, self.meaning, value, value, "", loc=node.loc))
         return value
 
 
@@ -541,11 +532,16 @@ class Items(Field):
                 ctx.error(item, item_path, "not a mapping", self.type_text(), repr(plain(item)))
                 failed = True
                 continue
+            first = len(ctx.records)
             try:
                 out.append(convert_fields(self.fields, item, ctx, item_path, self.exactly_one,
                                           self.at_most_one))
             except _Invalid:
                 failed = True
+                continue
+            name = out[-1].get("name") or out[-1].get("id")
+            for record in ctx.records[first:]:  # item tables name rows by the item's own name
+                record.item = record.item or (str(name) if name else f"{self.name} {i + 1}")
         if failed:
             raise _Invalid
         return out
@@ -578,14 +574,17 @@ class MaterialField(Field):
                       did_you_mean(str(name), ctx.materials) if isinstance(name, str) else None)
             raise _Invalid
         entry = ctx.materials[name]
-        shown = entry.get("title", name)
+        title = entry.get("title", name)
         if "conductivity" in entry:  # the property a reader checks first; the rest are listed
-            shown += f", λ = {format_quantity(entry['conductivity'], 'W/(m*K)', None, 3)}"
+            shown = phrase(f"{title}, λ = {{lam}}",
+                           lam=Value(entry["conductivity"], "W/(m*K)", given=True))
         elif entry.get("law"):
-            shown += " (temperature-dependent law)"
+            shown = phrase(f"{title} (temperature-dependent law)")
+        else:
+            shown = phrase(title)
         ctx.records.append(InputRecord(path, self.meaning or "material", name, name, "",
-                                       shown, entry.get("source", ""), "material",
-                                       loc=name_node.loc))
+                                       source=entry.get("source", ""), origin="material",
+                                       loc=name_node.loc, shown=shown))
         return entry
 
 
@@ -733,87 +732,150 @@ class ResultSpec:
 class ResultValue:
     spec: ResultSpec
     value: Any
-    display: str
+
+
+class StepMismatch(CalcdocError, AssertionError):
+    """A kind recorded a step whose expression does not give the value it recorded: a defect
+    of the kind (the printed working would not re-do), never of the input."""
 
 
 class BlockOutput:
-    """What ``compute`` writes: steps, results, series, notes, warnings and figure data."""
+    """What ``compute`` writes, all of it data: results, steps, series, notes, warnings,
+    figures. Nothing here is formatted for people; the view layer does that."""
 
-    def __init__(self, kind: "Kind", precision: int = 3, display: dict | None = None,
-                 block_key: str = "", unit_system: str = "SI"):
+    def __init__(self, kind: "Kind", display: dict | None = None, block_key: str = "",
+                 records: list | None = None):
         self.kind = kind
-        self.unit_system = unit_system
         self.block_key = block_key  # 'SHEET.block', for messages
-        self.precision = precision
         self.display_overrides = display or {}
+        self.records = records if records is not None else []
         self.results: dict[str, ResultValue] = {}
         self.steps: list[Step] = []
         self.warnings: list[dict] = []
         self.notes: list[dict] = []
         self.series: dict[str, Series] = {}
-        self.absent: dict[str, str] = {}  # result name → why it does not exist
+        self.absent: dict[str, Phrase] = {}  # result name → why it does not exist
         self.simulated_until: float | None = None
-        self.figure_data: dict[str, Any] = {}
-        self._specs = {r.name: r for r in kind.results}
+        self.figures: list[FigureData] = []
+        self._declared = {r.name: r for r in kind.results}
 
-    def spec(self, name: str) -> ResultSpec:
-        return self._specs[name]
+    # ---- results
 
-    def q(self, value_si: float, si_unit: str, display_unit: str | None = None,
-          difference: bool = False) -> str:
-        """Return the value as LaTeX in the display unit; ``difference`` for a temperature
-        difference in K (an absolute temperature in K is shown to 0.01 K)."""
-        return latex_quantity(value_si, si_unit, display_unit, self.precision, difference)
+    def declared(self, name: str) -> ResultSpec | None:
+        """Return the declaration of a result (a kind's, or one the block declared), or None."""
+        return self._declared.get(name)
 
-    def qt(self, value_si: float, si_unit: str, display_unit: str | None = None,
-           difference: bool = False) -> str:
-        """Return the value as plain text for notes, e.g. '0.273 W/(m²·K)'."""
-        return format_quantity(value_si, si_unit, display_unit, self.precision, difference)
+    def declared_results(self) -> list[ResultSpec]:
+        return list(self._declared.values())
+
+    def display_unit(self, name: str) -> str | None:
+        """Return the unit a result is shown in: the block's ``display:`` or the declaration's."""
+        spec = self._declared.get(name)
+        return self.display_overrides.get(name) or (spec.display if spec else None)
 
     def result(self, name: str, value, unit: str | None = None, meaning: str = "",
                temperature: str | None = None, display: str | None = None):
         """Record a result. Kinds with open results (formula) pass ``unit`` for new names."""
-        spec = self._specs.get(name)
+        spec = self._declared.get(name)
         if spec is None:
             if unit is None:
                 raise KeyError(f"result '{name}' is not declared by kind {self.kind.name}")
             spec = ResultSpec(name, unit, meaning, temperature, display)
-            self._specs[name] = spec
-        shown = self.display_overrides.get(name) or spec.display_unit(self.unit_system)
-        difference = spec.temperature == DIFFERENCE
+            self._declared[name] = spec
         if isinstance(value, (list, tuple)):
             value = [float(v) for v in value]
-            text = ", ".join(format_quantity(v, spec.unit, shown, self.precision, difference)
-                             for v in value)
         else:
             value = float(value)
-            text = format_quantity(value, spec.unit, shown, self.precision, difference)
-        self.results[name] = ResultValue(spec, value, text)
+        self.results[name] = ResultValue(spec, value)
 
-    def not_reached(self, name: str, why: str):
+    def value_of(self, name: str) -> Value:
+        """Return a recorded result as a :class:`Value`, to use as an operand of a later step."""
+        r = self.results[name]
+        return Value(r.value, r.spec.unit, self.display_unit(name), r.spec.temperature)
+
+    def not_reached(self, name: str, why: str, **values):
         """Record that a result does not exist (e.g. a time not reached) and why, in words."""
-        self.absent[name] = why
+        self.absent[name] = phrase(why, **values)
 
-    def step(self, symbol: str, formula: str, substituted: str, value, unit: str,
-             label: str = "", source: str = "", display_unit: str | None = None):
-        """Record a step: LaTeX symbol, formula in symbols, formula with numbers, result.
+    # ---- inputs
 
-        ``value`` is in the SI ``unit``; pass ``display_unit="degC"`` for an absolute temperature
-        in K (a difference stays in K: never show a difference with an offset unit)."""
-        shown = display_unit or unit
-        if isinstance(value, (list, tuple)):
-            text = ", ".join(format_quantity(v, unit, shown, self.precision) for v in value)
-        else:
-            text = format_quantity(float(value), unit, shown, self.precision)
-        self.steps.append(Step(symbol, formula, substituted, value, unit, shown, text, label,
-                               source))
+    def input(self, path: str) -> Value:
+        """Return the input at ``path`` (``layers[0].thickness``) as a :class:`Value`."""
+        for record in self.records:
+            if record.path == path:
+                return record.value()
+        raise KeyError(f"{self.block_key}: no input recorded at {path}")
 
-    def warn(self, message: str, source: str = ""):
-        self.warnings.append({"message": message, "source": source})
+    # ---- steps
 
-    def note(self, text: str, source: str = ""):
+    def step(self, name: str, expr: str, operands: dict, value, unit: str = "1", *,
+             display: str | None = None, temperature: str | None = None, label="",
+             source: str = "", yields: str | None = None, symbols: dict | None = None,
+             group: str | None = None, item: str | None = None) -> Value:
+        """Record a step ``name = expr`` over ``operands`` (name → :class:`Value` or a plain
+        dimensionless float) with its SI ``value``; return the result as a :class:`Value`.
+
+        The expression is checked at once: it must parse in the formula language, name only
+        the operands given, and give ``value`` from them (relative 1e-9), so that the printed
+        working always re-does. ``yields`` also records the block result of that name."""
+        from calcdoc.expressions import evaluate_float, names_in, parse_expression
+        operands = {k: v if isinstance(v, Value) else Value(float(v), given=True)
+                    for k, v in operands.items()}
+        tree = parse_expression(expr)
+        missing = [n for n in names_in(tree) if n not in operands]
+        if missing:
+            raise StepMismatch(f"{self.block_key}: step {name}: operands {missing} not given")
+        if yields is not None:
+            spec = self._declared.get(yields)
+            self.result(yields, value, unit=None if spec else unit, temperature=temperature,
+                        display=display)
+            spec = self._declared[yields]
+            unit, temperature = spec.unit, spec.temperature
+            display = self.display_unit(yields) or display
+        result = Value(value if isinstance(value, (list, tuple)) else float(value), unit,
+                       display, temperature)
+        if not isinstance(value, (list, tuple)):
+            try:
+                again = evaluate_float(tree, {k: v.si for k, v in operands.items()})
+            except (ArithmeticError, ValueError):
+                again = math.nan
+            if not math.isclose(again, float(value), rel_tol=1e-9, abs_tol=1e-12):
+                raise StepMismatch(f"{self.block_key}: step {name} = {expr} gives {again!r} "
+                                   f"from its operands, not the recorded {float(value)!r}")
+        self.steps.append(Step(name, result, expr, operands, None, label, source, yields,
+                               dict(symbols or {}), group, item))
+        return result
+
+    def statement(self, name: str, text: str, value, unit: str = "1", *,
+                  values: dict | None = None, display: str | None = None,
+                  temperature: str | None = None, label="", source: str = "",
+                  yields: str | None = None, symbols: dict | None = None) -> Value:
+        """Record a step that is not a closed-form evaluation (an iteration, a solver's output,
+        a table look-up): what was done, in words with named values, and its result."""
+        if yields is not None:
+            spec = self._declared.get(yields)
+            self.result(yields, value, unit=None if spec else unit, temperature=temperature,
+                        display=display)
+            spec = self._declared[yields]
+            unit, temperature = spec.unit, spec.temperature
+            display = self.display_unit(yields) or display
+        result = Value(value if isinstance(value, (list, tuple)) else float(value), unit,
+                       display, temperature)
+        self.steps.append(Step(name, result, None, {}, phrase(text, **(values or {})), label,
+                               source, yields, dict(symbols or {})))
+        return result
+
+    # ---- words and figures
+
+    def warn(self, message: str, source: str = "", **values):
+        self.warnings.append({"text": phrase(message, **values), "source": source})
+
+    def note(self, text: str, source: str = "", **values):
         """Record an assumption or a statement of method, printed with its source."""
-        self.notes.append({"text": text, "source": source})
+        self.notes.append({"text": phrase(text, **values), "source": source})
+
+    def figure(self, figure: FigureData):
+        self.figures.append(figure)
 
     def add_series(self, name: str, x, y, x_unit: str = "s", y_unit: str = "K",
                    x_label: str = "time", label: str = "", obj=None):
@@ -834,11 +896,13 @@ class Kind:
     inputs: tuple[Field, ...]
     results: tuple[ResultSpec, ...]
     compute: Callable[[Inputs, BlockOutput], None]
-    figures: Callable[[Any], list[Figure]] | None = None
     exactly_one: tuple[tuple[str, ...], ...] = ()
     at_most_one: tuple[tuple[str, ...], ...] = ()
     caution: str = ""
     open_results: bool = False  # results named by the user (formula)
+    # Physics parameter names → input paths, for locating a PhysicsRangeError: a path may hold
+    # '{index}' for the element of a list the error names ("thickness": "layers[{index}]...").
+    input_names: dict = field(default_factory=dict)
     inputs_at_block_level: bool = False  # inputs written beside id/kind, not under `inputs:`
     references: tuple[str, ...] = ()
 

@@ -29,8 +29,8 @@ from calcdoc.physics.conduction import (CHURCHILL_CHU_SOURCE, COMBINED_METHOD_SO
                                         pipe_in_still_air, plane_element,
                                         saturation_vapour_pressure, surface_relative_humidity,
                                         surface_resistances, temperature_factor)
-from calcdoc.units import (convert, format_number, format_quantity, latex_number, latex_unit,
-                           pretty_unit)
+from calcdoc.units import convert
+from calcdoc.render.numbers import format_number, format_quantity, latex_number, latex_unit, pretty_unit
 
 __all__ = ["KINDS", "LAYERED_WALL", "CYLINDRICAL_LAYERS", "wall_figures"]
 

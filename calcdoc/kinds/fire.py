@@ -30,7 +30,7 @@ from calcdoc.physics.steel import (MINIMUM_UTILISATION,
                                    specific_heat_carbon_steel, temperature_at_time,
                                    time_to_temperature, unprotected_steel_heating,
                                    unprotected_temperature_increment)
-from calcdoc.units import format_quantity
+from calcdoc.render.numbers import format_quantity
 
 __all__ = ["KINDS", "FireField", "exposure_duration", "fire_convection", "fire_description",
            "FIRE_CAUTION"]

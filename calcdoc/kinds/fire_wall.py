@@ -22,7 +22,7 @@ from calcdoc.physics.thermal_laws import (ZERO_CELSIUS, ThermalLaw,
                                           concrete_specific_heat_peak, constant_law)
 from calcdoc.physics.transient import (DEFAULT_MIN_CELLS, FireExposure, HeldTemperature, Layer,
                                        check_convergence)
-from calcdoc.units import format_quantity
+from calcdoc.render.numbers import format_quantity
 
 __all__ = ["KINDS", "WALL_FIRE_EXPOSURE", "material_law_figure", "PROFILE_TIMES"]
 

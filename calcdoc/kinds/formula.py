@@ -13,48 +13,22 @@ import math
 from dataclasses import dataclass
 
 import pint
-from scipy.constants import Stefan_Boltzmann
 
 from calcdoc.errors import InputError, Location
 from calcdoc.kinds.base import (REQUIRED, ABSOLUTE, DIFFERENCE, Field, FreeMapping, InputRecord,
                                 Items, Kind, Text, _Invalid, did_you_mean)
 from calcdoc.located import Node, plain
-from calcdoc.units import (UnitProblem, dimension_text, format_quantity, latex_quantity,
-                           parse_quantity_text, parse_unit, pretty_written, si_unit_for,
-                           split_quantity, ureg)
+from calcdoc.data import Value
+from calcdoc.render.numbers import pretty_written
+from calcdoc.units import (UnitProblem, dimension_text, parse_quantity_text, parse_unit,
+                           si_unit_for, split_quantity, unit_text_of, ureg)
 
 __all__ = ["KINDS", "parse_expression", "to_latex", "FUNCTIONS"]
 
-MAX_EXPONENT = 100.0
-MAX_MAGNITUDE = 1e100
-FUNCTIONS = ("sqrt", "exp", "log", "log10", "sin", "cos", "tan", "abs", "min", "max")
-CONSTANTS = {"pi": (math.pi, "1", r"\pi"),
-             "sigma": (Stefan_Boltzmann, "W/(m^2*K^4)", r"\sigma")}
-_GREEK = {"alpha", "beta", "gamma", "delta", "epsilon", "varepsilon", "zeta", "eta", "theta",
-          "vartheta", "iota", "kappa", "lambda", "mu", "nu", "xi", "rho", "tau", "upsilon", "phi",
-          "varphi", "chi", "psi", "omega", "Gamma", "Delta", "Theta", "Lambda", "Xi", "Phi",
-          "Psi", "Omega", "Sigma", "Pi"}
-
-
-MAX_EXPRESSION_CHARS = 500
-"""Longest expression accepted; a long working is several steps, which the report can show."""
-
-MAX_EXPRESSION_DEPTH = 40
-"""Deepest nesting of operations and brackets in one expression."""
-
-_OPERATOR_HINTS = {ast.BitXor: "write ** for a power, e.g. 'x ** 2'",
-                   ast.FloorDiv: "write / for a division", ast.Mod: None, ast.MatMult: None}
-
-
-class ExpressionError(ValueError):
-    """An expression that is not allowed; ``offset`` is the character it concerns."""
-
-    def __init__(self, what: str, expected: str, got: str, offset: int = 0,
-                 hint: str | None = None):
-        self.what, self.expected, self.got, self.offset, self.hint = what, expected, got, \
-            offset, hint
-        super().__init__(what)
-
+from calcdoc.expressions import (CONSTANTS, FUNCTIONS, MAX_EXPONENT,  # noqa: E402
+                                 MAX_EXPRESSION_CHARS, MAX_EXPRESSION_DEPTH, MAX_MAGNITUDE,
+                                 ExpressionError, names_in, parse_expression, symbol_latex,
+                                 to_latex)
 
 @dataclass
 class Expression:
@@ -69,201 +43,19 @@ class Expression:
         return self.node.loc_at(offset) if self.node is not None else self.loc
 
 
-def _depth(tree: ast.AST) -> int:
-    """Return the nesting depth of a tree, counted without recursion."""
-    deepest, stack = 0, [(tree, 1)]
-    while stack:
-        node, depth = stack.pop()
-        deepest = max(deepest, depth)
-        stack.extend((child, depth + 1) for child in ast.iter_child_nodes(node))
-    return deepest
-
-
-def _bracket_depth(text: str) -> int:
-    depth = deepest = 0
-    for ch in text:
-        depth += ch == "("
-        deepest = max(deepest, depth)
-        depth -= ch == ")"
-    return deepest
-
-
-def parse_expression(text: str) -> ast.Expression:
-    """Return the checked AST of an expression; raise ExpressionError for anything not allowed."""
-    text = str(text)
-    if len(text) > MAX_EXPRESSION_CHARS:
-        raise ExpressionError("expression too long", f"at most {MAX_EXPRESSION_CHARS} "
-                              "characters (split it into steps)", f"{len(text)} characters")
-    if "\n" in text or "\r" in text:
-        raise ExpressionError("an expression is one line", "one line", "a line break")
-    if _bracket_depth(text) > MAX_EXPRESSION_DEPTH:
-        raise ExpressionError("brackets nested too deeply", f"at most {MAX_EXPRESSION_DEPTH} "
-                              "levels", f"{_bracket_depth(text)} levels")
-    try:
-        tree = ast.parse(text, mode="eval")
-    except SyntaxError as exc:
-        hint = "write ** for a power, e.g. 'x ** 2'" if "^" in text else None
-        raise ExpressionError("not a valid expression", "an expression such as 'U * A * dT'",
-                              f"{text!r} ({exc.msg})", max((exc.offset or 1) - 1, 0),
-                              hint) from None
-    except (ValueError, MemoryError, RecursionError) as exc:
-        raise ExpressionError("not a valid expression", "an expression such as 'U * A * dT'",
-                              f"{text!r} ({type(exc).__name__})") from None
-    if _depth(tree) > MAX_EXPRESSION_DEPTH:
-        raise ExpressionError("expression nested too deeply", f"at most {MAX_EXPRESSION_DEPTH} "
-                              "levels of operations (split it into steps)",
-                              f"{_depth(tree)} levels")
-    for node in ast.walk(tree):
-        offset = getattr(node, "col_offset", 0) or 0
-        if isinstance(node, ast.BinOp) and not isinstance(
-                node.op, (ast.Add, ast.Sub, ast.Mult, ast.Div, ast.Pow)):
-            symbol = {ast.BitXor: "^", ast.FloorDiv: "//", ast.Mod: "%", ast.MatMult: "@",
-                      ast.BitAnd: "&", ast.BitOr: "|", ast.LShift: "<<",
-                      ast.RShift: ">>"}.get(type(node.op), type(node.op).__name__)
-            op_offset = _operator_offset(text, node, symbol)
-            raise ExpressionError("operator not allowed", "+ - * / **", repr(symbol),
-                                  op_offset, _OPERATOR_HINTS.get(type(node.op)))
-        if isinstance(node, ast.UnaryOp) and not isinstance(node.op, (ast.UAdd, ast.USub)):
-            raise ExpressionError("operator not allowed", "unary + or -",
-                                  type(node.op).__name__, offset)
-        if isinstance(node, (ast.Expression, ast.Load, ast.operator, ast.unaryop, ast.BinOp,
-                             ast.UnaryOp, ast.Name)):
-            continue
-        if isinstance(node, ast.Constant):
-            if isinstance(node.value, bool) or not isinstance(node.value, (int, float)):
-                raise ExpressionError("only numbers are allowed as literals", "a number",
-                                      repr(node.value), offset)
-            if not math.isfinite(float(node.value)) or abs(float(node.value)) > MAX_MAGNITUDE:
-                raise ExpressionError("number too large", f"a magnitude below "
-                                      f"{MAX_MAGNITUDE:g}", ast.get_source_segment(text, node)
-                                      or "", offset)
-            continue
-        if isinstance(node, ast.Call):
-            if not isinstance(node.func, ast.Name) or node.func.id not in FUNCTIONS:
-                got = node.func.id if isinstance(node.func, ast.Name) else ast.unparse(node.func)
-                raise ExpressionError("function not allowed", ", ".join(FUNCTIONS), repr(got),
-                                      offset)
-            if node.keywords:
-                raise ExpressionError("keyword arguments are not allowed",
-                                      "positional arguments", ast.unparse(node), offset)
-            if any(isinstance(a, ast.Starred) for a in node.args):
-                raise ExpressionError("not allowed in an expression", "plain arguments",
-                                      ast.unparse(node), offset)
-            continue
-        if isinstance(node, ast.Attribute):
-            raise ExpressionError("attribute access is not allowed",
-                                  "names, numbers, operators and functions", ast.unparse(node),
-                                  offset)
-        raise ExpressionError("not allowed in an expression",
-                              "names, numbers, + - * / **, functions", type(node).__name__,
-                              offset)
-    return tree
-
-
-def _operator_offset(text: str, node: ast.BinOp, symbol: str) -> int:
-    """Return where the operator of ``node`` is written (between its operands)."""
-    start = getattr(node.left, "end_col_offset", None)
-    if start is None:
-        return node.col_offset
-    found = text.find(symbol, start)
-    return found if found >= 0 else node.col_offset
-
-
-# ------------------------------------------------------------------------ LaTeX
-
-
-def symbol_latex(name: str) -> str:
-    """Return a name as a math symbol: 'theta_si' → '\\theta_{si}', 'U_w' → 'U_{w}'."""
-    base, _, sub = name.partition("_")
-
-    def part(word: str) -> str:
-        if word in _GREEK:
-            return "\\" + word
-        return word if len(word) == 1 else r"\mathit{" + word + "}"
-
-    text = part(base)
-    if sub:
-        pieces = [("\\" + p if p in _GREEK else p) for p in sub.split("_") if p]
-        text += "_{" + ",".join(pieces) + "}"
-    return text
-
-
-_PRECEDENCE = {ast.Add: 1, ast.Sub: 1, ast.Mult: 2, ast.Div: 2, ast.Pow: 4}
-
-
-def to_latex(tree: ast.AST, leaf) -> str:
-    """Return LaTeX for an expression; ``leaf(name)`` renders each name (symbol or value)."""
-
-    def prec(node) -> int:
-        if isinstance(node, ast.BinOp):
-            return _PRECEDENCE[type(node.op)]
-        if isinstance(node, ast.UnaryOp):
-            return 3
-        return 5
-
-    def wrap(node, limit: int) -> str:
-        text = go(node)
-        return rf"\left({text}\right)" if prec(node) < limit else text
-
-    def go(node) -> str:
-        if isinstance(node, ast.Expression):
-            return go(node.body)
-        if isinstance(node, ast.Constant):
-            return _number_latex(node.value)
-        if isinstance(node, ast.Name):
-            return leaf(node.id)
-        if isinstance(node, ast.UnaryOp):
-            sign = "-" if isinstance(node.op, ast.USub) else "+"
-            return sign + wrap(node.operand, 3)
-        if isinstance(node, ast.BinOp):
-            op = type(node.op)
-            if op is ast.Div:
-                return rf"\frac{{{go(node.left)}}}{{{go(node.right)}}}"
-            if op is ast.Pow:
-                base = go(node.left)
-                if prec(node.left) <= 4 or "\\," in base:
-                    base = rf"\left({base}\right)"
-                return f"{{{base}}}^{{{go(node.right)}}}"
-            symbol = {ast.Add: " + ", ast.Sub: " - ", ast.Mult: r" \cdot "}[op]
-            right_limit = _PRECEDENCE[op] + (1 if op is ast.Sub else 0)
-            return wrap(node.left, _PRECEDENCE[op]) + symbol + wrap(node.right, right_limit)
-        if isinstance(node, ast.Call):
-            name = node.func.id
-            args = [go(a) for a in node.args]
-            if name == "sqrt":
-                return rf"\sqrt{{{args[0]}}}"
-            if name == "abs":
-                return rf"\left|{args[0]}\right|"
-            if name in ("exp", "log", "sin", "cos", "tan", "min", "max"):
-                return rf"\{name}\left({', '.join(args)}\right)"
-            if name == "log10":
-                return rf"\log_{{10}}\left({args[0]}\right)"
-        raise ValueError(type(node).__name__)  # pragma: no cover - parse_expression guards
-
-    return go(tree)
-
-
-def _number_latex(value) -> str:
-    text = repr(value) if isinstance(value, float) else str(value)
-    if "e" in text:
-        mantissa, power = text.split("e")
-        return rf"{mantissa} \times 10^{{{int(power)}}}"
-    return text
-
-
 # ------------------------------------------------------------------------ evaluation
 
 
 @dataclass
 class Given:
-    """A value as a pint quantity (absolute temperatures in K), how to show it, and whether it
-    is an absolute temperature, a temperature difference or neither (None: also a value
-    written in K, which may be either)."""
+    """A value as a pint quantity (absolute temperatures in K), whether it is an absolute
+    temperature, a temperature difference or neither (None: also a value written in K, which
+    may be either), and the value to print where it is an operand of a step."""
 
     quantity: pint.Quantity
-    latex: str
+    value: Value | None
     temperature: str | None
-    shown: str = ""  # as the report prints it, for messages
+    shown: str = ""  # as written or referred to, for messages
 
 
 _DIFFERENCE_HINT = ("write a difference as '23 K' or '23 delta_degC', or subtract two "
@@ -314,13 +106,13 @@ def _evaluate(expr: "Expression", names: dict[str, Given], where: str) -> Given:
         if isinstance(node, ast.Expression):
             return go(node.body)
         if isinstance(node, ast.Constant):
-            return Given(ureg.Quantity(float(node.value), "dimensionless"), "", None)
+            return Given(ureg.Quantity(float(node.value), "dimensionless"), None, None)
         if isinstance(node, ast.Name):
             if node.id in names:
                 return names[node.id]
             if node.id in CONSTANTS:
                 value, unit, _ = CONSTANTS[node.id]
-                return Given(ureg.Quantity(value, parse_unit(unit)), "", None)
+                return Given(ureg.Quantity(value, parse_unit(unit)), None, None)
             hint = did_you_mean(node.id, names)
             fail(node, f"unknown name '{node.id}'", "a name from given, an earlier step, pi or "
                  "sigma", repr(node.id), hint)
@@ -328,7 +120,7 @@ def _evaluate(expr: "Expression", names: dict[str, Given], where: str) -> Given:
             value = go(node.operand)
             if isinstance(node.op, ast.USub):
                 refuse_absolute(node, node.operand, value, "negated")
-                return Given(-value.quantity, "", value.temperature)
+                return Given(-value.quantity, None, value.temperature)
             return value
         if isinstance(node, ast.BinOp):
             left, right = go(node.left), go(node.right)
@@ -398,7 +190,7 @@ def _evaluate(expr: "Expression", names: dict[str, Given], where: str) -> Given:
         except (ZeroDivisionError, OverflowError, FloatingPointError, ValueError) as exc:
             fail(node, "cannot be evaluated", "a finite real result",
                  f"{text_of(node)} ({exc})")
-        return Given(check(node, result), "", kind)
+        return Given(check(node, result), None, kind)
 
     def call(node, args: list[Given]) -> Given:
         name = node.func.id
@@ -416,7 +208,7 @@ def _evaluate(expr: "Expression", names: dict[str, Given], where: str) -> Given:
                      dimension_text(exc.units2))
             chosen = (min if name == "min" else max)(range(len(values)),
                                                      key=lambda i: values[i].magnitude)
-            return Given(values[chosen], "", args[chosen].temperature)
+            return Given(values[chosen], None, args[chosen].temperature)
         if len(args) != 1:
             fail(node, f"{name} takes one argument", "1 argument", f"{len(args)} arguments")
         value = args[0]
@@ -426,9 +218,9 @@ def _evaluate(expr: "Expression", names: dict[str, Given], where: str) -> Given:
             if float(a.magnitude) < 0:
                 fail(node, "square root of a negative value", "a value >= 0",
                      f"{text_of(node.args[0])} = {float(a.magnitude):.4g}")
-            return Given(check(node, a ** 0.5), "", None)
+            return Given(check(node, a ** 0.5), None, None)
         if name == "abs":
-            return Given(abs(a), "", value.temperature)
+            return Given(abs(a), None, value.temperature)
         x = dimensionless(node.args[0], a, name)
         if name in ("log", "log10") and x <= 0:
             fail(node, f"{name} of a value <= 0", "a positive argument", repr(x))
@@ -440,7 +232,7 @@ def _evaluate(expr: "Expression", names: dict[str, Given], where: str) -> Given:
             result = fn(x)
         except (ValueError, OverflowError) as exc:
             fail(node, "cannot be evaluated", "a finite real result", f"{text_of(node)} ({exc})")
-        return Given(check(node, ureg.Quantity(result, "dimensionless")), "", None)
+        return Given(check(node, ureg.Quantity(result, "dimensionless")), None, None)
 
     return go(expr.tree)
 
@@ -466,10 +258,12 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
             raise _Invalid
         q = ureg.Quantity(target.value, parse_unit(target.si_unit))
         ctx.records.append(InputRecord(path, name, f"ref {target.target}", target.value,
-                                       target.si_unit, target.display, f"result {target.target}",
-                                       "ref", target.target, node.loc))
-        return Given(q, latex_quantity(target.value, target.si_unit, None, ctx.precision),
-                     target.temperature, f"{target.display} (result {target.target})")
+                                       target.si_unit, target.display_unit,
+                                       f"result {target.target}", "ref", target.target, node.loc,
+                                       temperature=target.temperature))
+        return Given(q, Value(target.value, target.si_unit, target.display_unit,
+                              target.temperature), target.temperature,
+                     f"the result {target.target}")
     if node.is_map and "named" in node.value:
         entry = ctx.named.get(str(node.value["named"].value))
         if entry is None:
@@ -507,7 +301,6 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
             raise _Invalid
         q = ureg.Quantity(float(text), "dimensionless")
         written_unit, temperature = "1", None
-        latex = _number_latex(float(text)) if isinstance(text, float) else str(text)
     else:
         try:
             number, unit = split_quantity(str(text))
@@ -528,17 +321,16 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
                       "a number and a unit, such as '240 m^2'", f"{text!r} ({problem.what})",
                       problem.hint)
             raise _Invalid from None
-        latex = latex_quantity(float(q.magnitude), written_unit, None, ctx.precision)
     si = si_unit_for(written_unit)
     value_si = float(q.to(parse_unit(si)).magnitude) if si != "1" else float(
         q.to("dimensionless").magnitude)
-    display = format_quantity(value_si, si, "degC" if temperature == ABSOLUTE else
-                              (written_unit if written_unit != "1" else None), ctx.precision,
-                              temperature == DIFFERENCE)
-    ctx.records.append(InputRecord(path, name, str(text), value_si, si, display, source,
-                                   "named" if node.is_map and "named" in node.value else "given",
-                                   None, value_node.loc))
-    return Given(q, latex, temperature, pretty_written(str(text)) or display)
+    written_text = str(text)
+    shown_unit = unit_text_of(written_text)
+    record = InputRecord(path, name, written_text, value_si, si, shown_unit or None, source,
+                         "named" if node.is_map and "named" in node.value else "given", None,
+                         value_node.loc, temperature=temperature, written_unit=shown_unit)
+    ctx.records.append(record)
+    return Given(q, record.value(), temperature, pretty_written(written_text) or written_text)
 
 
 @dataclass(frozen=True)
@@ -618,18 +410,14 @@ def _compute(inp, out):
         si = si_unit_for("K" if lone else unit)
         value_si = float(q.to(parse_unit(si)).magnitude) if si != "1" else float(
             q.to("dimensionless").magnitude)
-        symbolic = to_latex(expr.tree, lambda n: symbol_latex(n) if n not in CONSTANTS
-                            else CONSTANTS[n][2])
-        substituted = to_latex(expr.tree, lambda n: _substitute(n, names))
-        out.step(symbol_latex(name), symbolic, substituted, value_si, si,
-                 label=step["label"], source=step["source"], display_unit=unit)
-        out.result(name, value_si, unit=si, meaning=step["label"], temperature=temperature,
-                   display=unit)
+        operands = {n: names[n].value for n in names_in(expr.tree)}
+        result = out.step(name, expr.text, operands, value_si, si,
+                          display=written if written not in ("", "1") else None,
+                          temperature=temperature, label=step["label"], source=step["source"],
+                          yields=name)
         names[name] = Given(ureg.Quantity(value_si, parse_unit(si)) if si != "1" else
-                            ureg.Quantity(value_si, "dimensionless"),
-                            latex_quantity(value_si, si, unit if not lone else "K",
-                                           out.precision), temperature,
-                            out.results[name].display)
+                            ureg.Quantity(value_si, "dimensionless"), result, temperature,
+                            f"the step {name}")
 
 
 def _step_temperature(value: Given, written: str, target, expr, where: str) -> str | None:
@@ -654,15 +442,6 @@ def _step_temperature(value: Given, written: str, target, expr, where: str) -> s
                              "an absolute temperature", "write the unit as degC or K")
         return DIFFERENCE
     return ABSOLUTE if value.temperature == ABSOLUTE else DIFFERENCE
-
-
-def _substitute(name: str, names: dict[str, Given]) -> str:
-    if name in names:
-        return names[name].latex
-    if name == "pi":
-        return r"\pi"
-    value, unit, _ = CONSTANTS[name]
-    return latex_quantity(value, unit, None, 4)
 
 
 FORMULA = Kind(

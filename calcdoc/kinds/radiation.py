@@ -23,7 +23,7 @@ from calcdoc.physics.radiation import (STEFAN_BOLTZMANN, emissive_power,
 from calcdoc.physics.viewfactors import (coaxial_disks, element_to_rectangle,
                                          element_to_rectangle_corner, opposed_rectangles,
                                          perpendicular_rectangles, reciprocal_view_factor)
-from calcdoc.units import format_quantity, latex_quantity
+from calcdoc.render.numbers import format_quantity, latex_quantity
 
 __all__ = ["KINDS"]
 

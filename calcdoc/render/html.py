@@ -22,8 +22,11 @@ import nh3
 from markupsafe import Markup, escape
 
 from calcdoc import __version__
+from calcdoc.data import Value
 from calcdoc.render.math import mathml, pdf_math, split_formula
-from calcdoc.units import format_quantity, latex_quantity
+from calcdoc.render.plots import draw
+from calcdoc.render.printed import PrintedStep, fill, print_check, print_value
+from calcdoc.render.status import signoff_state
 
 __all__ = ["package_view", "render_site", "render_package_html", "environment", "TEMPLATES",
            "CAUTION", "PRELIMINARY", "sheet_page_name", "notes_html", "initials", "Citations"]
@@ -119,61 +122,87 @@ def _relation(relation: str) -> str:
     return "≤" if relation == "at_most" else "≥"
 
 
-def _step_view(step, math, precision: int) -> dict:
-    """Return a step as a checker writes it: symbol = formula = numbers = result, one per line."""
-    if isinstance(step.value_si, (list, tuple)):
-        result = ""
-    else:
-        result = latex_quantity(float(step.value_si), step.si_unit, step.display_unit, precision)
+def _step_view(step: PrintedStep, math) -> dict:
+    """Return a step as a checker writes it: symbol = formula = numbers = result, one per line;
+    a statement says what was done and gives its result."""
     rows = []
-    for kind, latex in (("formula", step.formula), ("substituted", step.substituted),
-                        ("result", result)):
-        if not latex or any(latex == r["latex"] for r in rows):
-            continue
-        lines = split_formula("= " + latex, STEP_WIDTH_PT)
-        rows.append({"kind": kind, "latex": latex, "lines": [math(line) for line in lines]})
-    return {"symbol": math(step.symbol), "rows": rows, "label": step.label,
-            "display": step.display if not result else "",
-            "alt": " = ".join([step.symbol] + [r["latex"] for r in rows])}
+    if step.expr is not None:
+        for kind, latex in (("formula", step.latex_formula),
+                            ("substituted", step.latex_substituted),
+                            ("result", step.latex_result)):
+            if not latex or any(latex == r["latex"] for r in rows):
+                continue
+            lines = split_formula("= " + latex, STEP_WIDTH_PT)
+            rows.append({"kind": kind, "latex": latex, "lines": [math(line) for line in lines]})
+    else:
+        rows.append({"kind": "result", "latex": step.latex_result,
+                     "lines": [math("= " + step.latex_result)]})
+    return {"symbol": math(step.latex_symbol), "rows": rows, "label": step.label,
+            "statement": step.statement or "", "display": "", "name": step.name,
+            "group": step.group, "item": step.item,
+            "alt": " = ".join([step.latex_symbol] + [r["latex"] for r in rows])}
 
 
-def _block_view(block, cites: Citations, math, comments_on, links: _Links) -> dict:
+def _input_view(r, block, cites, links, sig: int, system: str) -> dict:
+    if r.shown is not None:
+        display = fill(r.shown, sig, system)
+    elif r.origin in ("material",) or isinstance(r.si, str):
+        display = str(r.si)
+    elif isinstance(r.si, (int, float)):
+        display = print_value(r.value(), sig, system).text
+    else:
+        display = str(r.written)
+    written = r.written
+    if r.origin == "named" and r.ref:
+        written = r.ref
+    return {"path": r.path, "meaning": r.meaning, "display": display,
+            "numeric": bool(_NUMERIC.match(str(display))), "written": written,
+            "origin": r.origin, "ref": r.ref if r.origin == "ref" else None,
+            "ref_href": links.anchor(_ref_key(r.ref, block)) if r.origin == "ref" else None,
+            "cite": cites.cite(r.source, block.key) if r.origin != "ref" else None,
+            "source": r.source, "item": r.item,
+            "where": f"{r.loc.in_project}:{r.loc.line}" if r.loc and r.loc.line else ""}
+
+
+def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: int,
+                system: str, figures) -> dict:
     out = block.output
     key = block.key
     # Citations are numbered in reading order: method, inputs, assumptions, steps, warnings, checks.
     method = [n for n in (cites.cite(ref, key) for ref in block.kind.references) if n]
-    inputs = []
-    for r in block.inputs:
-        inputs.append({"path": r.path, "meaning": r.meaning, "display": r.display,
-                       "numeric": bool(_NUMERIC.match(str(r.display))),
-                       "written": r.written, "origin": r.origin, "ref": r.ref,
-                       "ref_href": links.anchor(_ref_key(r.ref, block)) if r.ref else None,
-                       "cite": cites.cite(r.source, key) if r.origin != "ref" else None,
-                       "source": r.source,
-                       "where": f"{r.loc.file}:{r.loc.line}" if r.loc and r.loc.line else ""})
-    notes = [{"text": n["text"], "cite": cites.cite(n.get("source", ""), key)}
+    inputs = [_input_view(r, block, cites, links, sig, system) for r in block.inputs]
+    notes = [{"text": fill(n["text"], sig, system), "cite": cites.cite(n.get("source", ""), key)}
              for n in out.notes]
     steps = []
-    for s in out.steps:
-        view = _step_view(s, math, out.precision)
+    for s in block.printed_steps(sig, system):
+        view = _step_view(s, math)
         view["cite"] = cites.cite(s.source, key)
         steps.append(view)
     results = []
     for name, r in out.results.items():
-        results.append({"name": name, "meaning": r.spec.meaning, "display": r.display,
+        value = out.value_of(name)
+        if isinstance(r.value, list):
+            display = ", ".join(print_value(value, sig, system, index=i).text
+                                for i in range(len(r.value)))
+        else:
+            display = print_value(value, sig, system).text
+        results.append({"name": name, "meaning": r.spec.meaning, "display": display,
                         "anchor": f"{key}.{name}", "absent": False})
     for name, why in out.absent.items():
-        spec = out._specs.get(name)
-        results.append({"name": name, "meaning": spec.meaning if spec else "", "display": why,
-                        "anchor": f"{key}.{name}", "absent": True})
+        spec = out.declared(name)
+        results.append({"name": name, "meaning": spec.meaning if spec else "",
+                        "display": fill(why, sig, system), "anchor": f"{key}.{name}",
+                        "absent": True})
+    drawn = figures(block)
     for name, series in out.series.items():
         if name in out.results or name in out.absent:
             continue
         results.append({"name": name, "meaning": series.label or f"{series.y_unit} over "
                         f"{series.x_label}", "display": f"curve of {len(series.x)} points"
-                        + (" (figure)" if block.kind.figures is not None else ""),
+                        + (" (figure)" if drawn else ""),
                         "anchor": f"{key}.{name}", "absent": False})
-    warnings = [{"text": w["message"], "cite": cites.cite(w.get("source", ""), key)}
+    warnings = [{"text": fill(w["text"], sig, system), "cite": cites.cite(w.get("source", ""),
+                                                                          key)}
                 for w in out.warnings]
     checks = []
     seen_anchors: set[str] = set()
@@ -182,28 +211,27 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links) -> di
         if anchor in seen_anchors:  # two checks on one result (at least and at most)
             anchor = f"{anchor}-{c.relation}"
         seen_anchors.add(anchor)
+        shown = print_check(c, sig, system)
         checks.append({"result": c.result, "relation": _relation(c.relation),
-                       "value": c.value_display, "limit": c.limit_display,
-                       "margin": c.margin_display,
-                       "utilisation": f"{c.utilisation:.2f}" if c.utilisation is not None
-                       and c.utilisation != float("inf") else "—",
-                       "passed": c.passed, "note": c.note, "source": c.source,
+                       "value": shown.value, "limit": shown.limit, "margin": shown.margin,
+                       "utilisation": shown.utilisation,
+                       "passed": c.passed, "note": shown.note, "source": c.source,
                        "cite": cites.cite(c.source, key), "anchor": anchor,
                        "href": links.anchor(anchor),
                        "result_href": links.anchor(f"{key}.{c.result}"),
                        "block": key, "block_href": links.anchor(key),
                        "block_title": block.spec.title, "sheet": block.spec.sheet_id})
-    figures, law_figures = [], []
-    for fig in _figures_of(block):
+    block_figures, law_figures = [], []
+    for fig in drawn:
         item = {"key": fig.key, "caption": fig.caption, "svg": Markup(fig.svg),
                 "img": _svg_data_img(fig.svg, fig.caption), "block": key,
                 "block_href": links.anchor(key)}
         # Material-law plots belong to the materials appendix, not to the block.
-        (law_figures if fig.key.endswith(LAW_FIGURE_SUFFIX) else figures).append(item)
+        (law_figures if fig.appendix else block_figures).append(item)
     return {"key": key, "id": block.id, "title": block.spec.title, "kind": block.kind.name,
             "kind_title": block.kind.title, "method": method, "inputs": inputs,
             "steps": steps, "results": results, "checks": checks, "notes": notes,
-            "warnings": warnings, "figures": figures, "law_figures": law_figures,
+            "warnings": warnings, "figures": block_figures, "law_figures": law_figures,
             "caution": block.kind.caution,
             "block_notes": notes_html(block.spec.notes),
             "comments": comments_on.get(key, []), "passed": block.passed,
@@ -228,7 +256,7 @@ def _materials_view(package, cites: "Citations", links) -> list[dict]:
     rows = []
     for name in sorted(used):
         entry = package.project.materials.get(name, {})
-        properties = {column: format_quantity(entry[column], unit, None, 3)
+        properties = {column: print_value(Value(entry[column], unit, given=True), 3).text
                       for column, unit in _MATERIAL_COLUMNS if column in entry}
         rows.append({"name": name, "title": entry.get("title", name),
                      "properties": properties, "law": entry.get("law", ""),
@@ -238,15 +266,18 @@ def _materials_view(package, cites: "Citations", links) -> list[dict]:
     return rows
 
 
-def _figures_of(block) -> list:
-    """Return the block's figures, drawn once for both the site and the PDF."""
-    if block.kind.figures is None:
-        return []
-    cached = block.__dict__.get("_calcdoc_figures")
-    if cached is None:
-        cached = list(block.kind.figures(block))
-        block.__dict__["_calcdoc_figures"] = cached
-    return cached
+class Drawings:
+    """Each block's figures drawn once per build, for both the site and the PDF."""
+
+    def __init__(self, sig: int, system: str):
+        self.sig, self.system = sig, system
+        self.drawn: dict[str, list] = {}
+
+    def __call__(self, block) -> list:
+        if block.key not in self.drawn:
+            self.drawn[block.key] = [draw(f, self.sig, self.system)
+                                     for f in block.output.figures]
+        return self.drawn[block.key]
 
 
 def _ref_key(ref: str, block) -> str:
@@ -266,25 +297,13 @@ def _signoff_view(signoff: dict, current_rev: str) -> dict:
             for role, s in signoff.items()}
 
 
-def _signoff_state(signoff: dict, current_rev: str) -> str:
-    """Return the sheet's sign-off state in words, as the index shows it."""
-    checked, prepared = signoff.get("checked"), signoff.get("prepared")
-    if prepared is None:
-        return "not prepared"
-    if checked is None:
-        return "not checked"
-    if checked["rev"] != current_rev:
-        return f"checked at {checked['rev']}, not at {current_rev}"
-    if checked["by"].strip() == prepared["by"].strip():
-        return "checked by its preparer"
-    return f"checked at {current_rev}"
-
-
-def package_view(package, target: str = "site") -> dict:
+def package_view(package, target: str = "site", drawings: "Drawings | None" = None) -> dict:
     """Return the whole package as view data for the templates (``target``: site | pdf)."""
     if target not in ("site", "pdf"):
         raise ValueError(f"target must be site or pdf, got {target!r}")
     project = package.project
+    sig, system = project.precision, project.units
+    drawings = drawings or Drawings(sig, system)
     math = mathml if target == "site" else pdf_math
     links = _Links(target)
     cites = Citations()
@@ -303,19 +322,20 @@ def package_view(package, target: str = "site") -> dict:
         comments_on.setdefault(c.on, []).append(item)
     sheets = []
     for index, sheet in enumerate(package.sheets):
-        blocks = [_block_view(b, cites, math, comments_on, links) for b in sheet.blocks]
+        blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings)
+                  for b in sheet.blocks]
         spec = sheet.spec
         signoff = _signoff_view(spec.signoff, current)
         checks = [c for b in blocks for c in b["checks"]]
         sheet_comments = comments_on.get(spec.id, [])
         all_comments = sheet_comments + [c for b in blocks for c in b["comments"]]
-        state = _signoff_state(signoff, current)
+        state = signoff_state(spec.signoff, current)
         sheets.append({
             "id": spec.id, "title": spec.title, "file": spec.relpath,
             "page": sheet_page_name(spec.id), "href": links.anchor(spec.id),
             "notes": notes_html(spec.notes),
-            "signoff": signoff, "signoff_state": state,
-            "signed_off": state == f"checked at {current}",
+            "signoff": signoff, "signoff_state": state.words,
+            "signed_off": state.ok,
             "blocks": blocks, "checks": checks,
             "failed": sum(1 for c in checks if not c["passed"]),
             "comments": sheet_comments,

@@ -1,4 +1,5 @@
-"""Matplotlib figures as deterministic SVG text, in one plain house style.
+"""Figures drawn from the data kinds record (:class:`calcdoc.data.FigureData`), as deterministic
+SVG text in one plain house style.
 
 Every figure is drawn with the SVG backend, with fixed metadata (no date), a per-figure hash salt
 (stable ids) and real text (``svg.fonttype = none``), so that the same inputs give the same bytes
@@ -12,6 +13,7 @@ from __future__ import annotations
 
 import io
 from contextlib import contextmanager
+from dataclasses import dataclass
 
 import matplotlib
 import numpy as np
@@ -19,9 +21,10 @@ import numpy as np
 matplotlib.use("svg")
 from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
 from matplotlib.figure import Figure  # noqa: E402
+from matplotlib.patches import Rectangle  # noqa: E402
 
 __all__ = ["figure", "svg_of", "LINE_STYLES", "COLOURS", "HATCHES", "mark_vertical",
-           "mark_horizontal", "thin", "PLOT_POINTS"]
+           "mark_horizontal", "thin", "PLOT_POINTS", "draw", "Drawn"]
 
 LINE_STYLES = ("-", "--", "-.", ":", (0, (5, 1, 1, 1, 1, 1)), (0, (1, 1)))
 COLOURS = ("#1f3b73", "#b03a2e", "#2e7d32", "#6a1b9a", "#ef6c00", "#455a64")
@@ -113,3 +116,119 @@ def mark_horizontal(ax, y: float, label: str, style: str = "--"):
     ax.axhline(y, color="#000000", linestyle=style, linewidth=0.9)
     ax.annotate(label, xy=(0.0, y), xycoords=("axes fraction", "data"), xytext=(3, 3),
                 textcoords="offset points", fontsize=7.5, ha="left", va="bottom")
+
+
+# ----------------------------------------------------------------------------- figures from data
+
+_SHADES = ({"facecolor": "#ffffff", "hatch": None}, {"facecolor": "#ebebeb", "hatch": "//"},
+           {"facecolor": "#d9d9d9", "hatch": None}, {"facecolor": "#f2f2f2", "hatch": "\\\\"},
+           {"facecolor": "#f6e0d3", "hatch": None}, {"facecolor": "#e3ecf7", "hatch": "xx"})
+
+
+@dataclass(frozen=True)
+class Drawn:
+    """A drawn figure: its key, caption, SVG text and whether it belongs to the appendix."""
+
+    key: str
+    caption: str
+    svg: str
+    appendix: bool = False
+
+
+def _scale(unit: str, display: str | None):
+    """Return (a, b) with shown = a + b·SI for a linear (possibly offset) unit conversion."""
+    if not display or display == unit:
+        return 0.0, 1.0
+    from calcdoc.units import convert
+    a = convert(0.0, unit, display)
+    return a, convert(1.0, unit, display) - a
+
+
+def _axis_text(axis) -> str:
+    from calcdoc.render.numbers import pretty_unit
+    shown = pretty_unit(axis.display or axis.unit) if (axis.display or axis.unit) not in (
+        "1", "") else ""
+    return f"{axis.label} ({shown})" if shown else axis.label
+
+
+def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
+    """Return a figure drawn from its data: bands and boxes first, then contours, curves, marks
+    and points with their words, axes in the display units the data asks for."""
+    from calcdoc.render.printed import fill
+    ax_x, bx_x = _scale(data.x.unit, data.x.display)
+    ax_y, bx_y = _scale(data.y.unit, data.y.display)
+
+    def sx(v):
+        return ax_x + bx_x * np.asarray(v, dtype=float)
+
+    def sy(v):
+        return ax_y + bx_y * np.asarray(v, dtype=float)
+
+    width, height = data.size
+    with figure(data.key, width, height) as (fig, ax):
+        for band in data.bands:
+            shade = _SHADES[band.shade % len(_SHADES)]
+            ax.axvspan(float(sx(band.x0)), float(sx(band.x1)), edgecolor="#777777",
+                       linewidth=0.6, zorder=0, **shade)
+            if band.label:
+                ax.text(float(sx((band.x0 + band.x1) / 2)), 0.5, band.label,
+                        transform=ax.get_xaxis_transform(), rotation=90, ha="center",
+                        va="center", fontsize=6.5, zorder=3,
+                        bbox={"facecolor": "white", "edgecolor": "none", "pad": 1.0})
+        for box in data.boxes:
+            shade = _SHADES[box.shade % len(_SHADES)]
+            x0, x1 = float(sx(box.x0)), float(sx(box.x1))
+            y0, y1 = float(sy(box.y0)), float(sy(box.y1))
+            ax.add_patch(Rectangle((x0, y0), x1 - x0, y1 - y0, edgecolor="#000000",
+                                   linewidth=0.7, zorder=1, **shade))
+            if box.label:
+                ax.text((x0 + x1) / 2, (y0 + y1) / 2, box.label, ha="center", va="center",
+                        fontsize=7, zorder=3,
+                        bbox={"facecolor": "white", "edgecolor": "none", "pad": 0.8})
+        if data.contours is not None:
+            c = data.contours
+            az, bz = _scale(c.unit, c.display)
+            values = az + bz * np.asarray(c.values, dtype=float)
+            levels = None if c.levels is None else az + bz * np.asarray(c.levels, dtype=float)
+            lines = ax.contour(sx(c.x), sy(c.y), values, levels=levels, colors="#333333",
+                               linewidths=0.6, zorder=2)
+            ax.clabel(lines, fmt=lambda v: f"{v:g}", fontsize=6)
+        labelled = False
+        for line in data.lines:
+            x, y = thin(sx(line.x), sy(line.y))
+            ax.plot(x, y, color=COLOURS[line.style % len(COLOURS)],
+                    linestyle=LINE_STYLES[line.style % len(LINE_STYLES)],
+                    marker="o" if line.marker else None, markersize=3, zorder=4,
+                    label=line.label or None)
+            labelled = labelled or bool(line.label)
+        for mark in data.marks:
+            style = LINE_STYLES[mark.style % len(LINE_STYLES)]
+            if mark.axis == "y":
+                mark_horizontal(ax, float(sy(mark.at)), mark.label, style)
+            else:
+                mark_vertical(ax, float(sx(mark.at)), mark.label, style)
+        for point in data.points:
+            px, py = float(sx(point.x)), float(sy(point.y))
+            ax.plot([px], [py], marker="X", markersize=8, color=COLOURS[1], linestyle="none",
+                    zorder=5)
+            if point.label:
+                # The words sit in the free corner away from the data, with a leader line, so
+                # that they cover nothing they name.
+                ax.annotate(point.label, xy=(px, py), xytext=(0.98, 0.98),
+                            textcoords="axes fraction", ha="right", va="top", fontsize=7,
+                            arrowprops={"arrowstyle": "-", "color": "#555555",
+                                        "linewidth": 0.6},
+                            bbox={"facecolor": "white", "edgecolor": "#999999", "pad": 1.5},
+                            zorder=6)
+        if data.x.limits is not None:
+            ax.set_xlim(*(float(v) for v in sx(data.x.limits)))
+        if data.y.limits is not None:
+            ax.set_ylim(*(float(v) for v in sy(data.y.limits)))
+        if data.equal_aspect:
+            ax.set_aspect("equal")
+        ax.set_xlabel(_axis_text(data.x))
+        ax.set_ylabel(_axis_text(data.y))
+        if labelled and data.legend:
+            ax.legend(loc=data.legend)
+        svg = svg_of(fig)
+    return Drawn(data.key, fill(data.caption, sig, system), svg, data.appendix)
