@@ -17,8 +17,8 @@ from calcdoc.errors import InputError, InputErrors, Location
 from calcdoc.kinds import registry
 from calcdoc.kinds.base import did_you_mean
 from calcdoc.located import Node, is_date, load_yaml, plain
-from calcdoc.model import (BlockSpec, CheckSpec, Project, ReviewComment, Revision, SheetSpec,
-                           Signature)
+from calcdoc.model import (BlockSpec, CheckSpec, Confirmation, Project, ReviewComment, Revision,
+                           SheetSpec, Signature)
 from calcdoc.sources import DiskFiles, FileProblem, ProjectFiles
 from calcdoc.structure import (BLOCK, CHECK, PROJECT_FILE, REVIEW_FILE, SHEET_FILE, read,
                                read_checked)
@@ -399,8 +399,11 @@ def read_project(folder: str | Path | ProjectFiles) -> tuple[Project | None, lis
 
     sheet_names = _sheet_names(files, sheets_node, col)
     materials = load_materials(builtin_material_files(), LIBRARY_DIR, col)
+    project_materials: set[str] = set()
     if files.exists("materials.yaml"):
-        materials.update(load_materials(["materials.yaml"], None, col, files))
+        own = load_materials(["materials.yaml"], None, col, files)
+        project_materials = set(own)
+        materials.update(own)
     named = load_named_values()
 
     known_kinds = registry()
@@ -439,8 +442,17 @@ def read_project(folder: str | Path | ProjectFiles) -> tuple[Project | None, lis
                       package_title=package.get("title") or "",
                       revisions=revisions, units=units, precision=precision, sheets=sheets,
                       materials=materials, named=named, reviewer=reviewer, comments=comments,
-                      input_files=input_files, files=files, unreadable=unreadable)
+                      input_files=input_files, files=files, unreadable=unreadable,
+                      confirmations=_confirmations(tree, data, col),
+                      project_materials=project_materials)
     return project, col.errors
+
+
+def _confirmations(tree: Node, data: dict, col: Collector) -> list[Confirmation]:
+    items = data.get("confirmations") or []
+    nodes = tree.value["confirmations"].value if items else []
+    return [Confirmation(c["value"], c["by"], c["date"], c["against"], node.loc)
+            for c, node in zip(items, nodes) if c]
 
 
 def _under(key: str, unreadable: set[str]) -> bool:

@@ -86,6 +86,14 @@ PROJECT_FILE = (
     Key("precision", "significant figures shown (results.json keeps full precision)",
         "integer", default=3, low=2, high=8, what="precision out of range",
         expected="a whole number of significant figures from 2 to 8"),
+    Key("confirmations", "library values checked against their printed source by the "
+        "project", "list", items=Key("confirmation", "one value confirmed", "mapping", keys=(
+            Key("value", "the value, as 'Values to confirm' names it, e.g. "
+                "materials.mineral_wool.conductivity", required=True),
+            Key("by", "who checked it", required=True),
+            Key("date", "when (YYYY-MM-DD)", "date", required=True),
+            Key("against", "the document, edition and table it was checked against",
+                required=True)))),
 )
 
 CHECK = Key("check", "a check of a result against a limit", "mapping",
