@@ -92,10 +92,14 @@ def cmd_kinds(args) -> int:
     from calcdoc.kinds import registry
     from calcdoc.project import load_named_values
     kinds = registry()
-    if args.schema:
-        from calcdoc.schema import sheet_schema
-        print(json.dumps(sheet_schema(), indent=1, ensure_ascii=False))
-        return 0
+    if args.json:
+        chosen = [kinds[args.kind]] if args.kind in kinds else list(kinds.values())
+        if args.kind is not None and args.kind not in kinds:
+            chosen = []
+        if chosen:
+            docs = [k.describe() for k in chosen]
+            print(json.dumps(docs[0] if args.kind else docs, indent=1, ensure_ascii=False))
+            return 0
     if args.kind is None:
         print("Kinds:")
         for kind in kinds.values():
@@ -234,6 +238,13 @@ def cmd_materials(args) -> int:
     return 0
 
 
+def cmd_schema(args) -> int:
+    from calcdoc.schema import project_schema, review_schema, sheet_schema
+    made = {"sheet": sheet_schema, "project": project_schema, "review": review_schema}
+    print(json.dumps(made[args.file](), indent=1, ensure_ascii=False))
+    return 0
+
+
 def cmd_new(args) -> int:
     from calcdoc.starter import write_starter
     written = write_starter(Path(args.dir))
@@ -290,9 +301,13 @@ def parser() -> argparse.ArgumentParser:
     c.set_defaults(func=cmd_check)
     k = sub.add_parser("kinds", help="list kinds, or one kind's inputs and results")
     k.add_argument("kind", nargs="?")
-    k.add_argument("--schema", action="store_true",
-                   help="print the JSON Schema of a sheet file, generated from the kinds")
+    k.add_argument("--json", action="store_true",
+                   help="every kind (or one) with its inputs and results, as JSON")
     k.set_defaults(func=cmd_kinds)
+    sc = sub.add_parser("schema", help="print the JSON Schema of a sheet, project.yaml or "
+                        "review.yaml, for editors")
+    sc.add_argument("file", nargs="?", choices=("sheet", "project", "review"), default="sheet")
+    sc.set_defaults(func=cmd_schema)
     mt = sub.add_parser("materials", help="list the materials library, or show one material")
     mt.add_argument("name", nargs="?")
     mt.add_argument("--json", action="store_true", help="print the materials as JSON")
