@@ -119,7 +119,9 @@ class Band:
 
 @dataclass(frozen=True)
 class Box:
-    """A rectangle (an opening, a region of a section), shaded and named."""
+    """A rectangle (an opening, a region of a section), shaded and named; the name is drawn
+    at its centre, or at ``label_at`` (x, y in the axes' SI units) where something else sits
+    at the centre."""
 
     x0: float
     y0: float
@@ -127,6 +129,7 @@ class Box:
     y1: float
     label: str = ""
     shade: int = 0
+    label_at: tuple | None = None
 
 
 @dataclass(frozen=True)

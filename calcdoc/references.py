@@ -63,8 +63,13 @@ PUBLICATIONS = {
     "Churchill and Chu": "Churchill and Chu, Int. J. Heat Mass Transfer 18 (1975) 1049–1053",
     "CIBSE Guide A": "CIBSE Guide A, Environmental design (2015)",
     "ECCS": "ECCS Technical Committee 3, Fire resistance of steel structures (1995)",
+    "Howell (2010)": "Howell, A catalog of radiation heat transfer configuration factors, 3rd "
+                     "ed. (2010)",
+    "Incropera (2011)": "Bergman, Lavine, Incropera and DeWitt, Fundamentals of heat and mass "
+                        "transfer, 7th ed. (2011)",
     "Howell": "Howell, A catalog of radiation heat transfer configuration factors",
-    "Incropera": "Incropera, DeWitt, Bergman and Lavine, Fundamentals of heat and mass transfer",
+    "Incropera": "Bergman, Lavine, Incropera and DeWitt, Fundamentals of heat and mass "
+                 "transfer",
     "SCI P363": "SCI P363, Steel building design: design data (Blue Book)",
     "Euronorm 19-57": "Euronorm 19-57, IPE beams",
     "Euronorm 53-62": "Euronorm 53-62, wide-flange beams",

@@ -855,7 +855,8 @@ class BlockOutput:
     def statement(self, name: str, text: str, value, unit: str = "1", *,
                   values: dict | None = None, display: str | None = None,
                   temperature: str | None = None, label="", source: str = "",
-                  yields: str | None = None, symbols: dict | None = None) -> Value:
+                  yields: str | None = None, symbols: dict | None = None,
+                  group: str | None = None, item: str | None = None) -> Value:
         """Record a step that is not a closed-form evaluation (an iteration, a solver's output,
         a table look-up): what was done, in words with named values, and its result."""
         if yields is not None:
@@ -868,7 +869,7 @@ class BlockOutput:
         result = Value(value if isinstance(value, (list, tuple)) else float(value), unit,
                        display, temperature)
         self.steps.append(Step(name, result, None, {}, phrase(text, **(values or {})), label,
-                               source, yields, dict(symbols or {})))
+                               source, yields, dict(symbols or {}), group, item))
         return result
 
     # ---- words and figures

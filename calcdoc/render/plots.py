@@ -182,7 +182,9 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
             ax.add_patch(Rectangle((x0, y0), x1 - x0, y1 - y0, edgecolor="#000000",
                                    linewidth=0.7, zorder=1, **shade))
             if box.label:
-                ax.text((x0 + x1) / 2, (y0 + y1) / 2, box.label, ha="center", va="center",
+                lx, ly = ((x0 + x1) / 2, (y0 + y1) / 2) if box.label_at is None else (
+                    float(sx(box.label_at[0])), float(sy(box.label_at[1])))
+                ax.text(lx, ly, box.label, ha="center", va="center",
                         fontsize=7, zorder=3,
                         bbox={"facecolor": "white", "edgecolor": "none", "pad": 0.8})
         if data.contours is not None:

@@ -228,8 +228,8 @@ def _substituted(name: str, printed: dict) -> str:
         return rf"\left({text}\right)" if p.number.startswith("−") else text
     if name == "pi":
         return r"\pi"
-    value, unit, _ = CONSTANTS[name]
-    return rf"{number_latex(float(f'{value:.4g}'))}\,{latex_unit(unit)}"
+    value, unit, _ = CONSTANTS[name]  # in full: a checker re-doing the step uses this number
+    return rf"{number_latex(float(f'{value:.10g}'))}\,{latex_unit(unit)}"
 
 
 # ----------------------------------------------------------------------------- results and checks
