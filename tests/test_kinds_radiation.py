@@ -760,3 +760,28 @@ def test_demo_radiation_sheets__every_printed_step_redoes_with_pint(demo_radiati
                 block.key, step.name, step.expr, record)
             redone += 1
     assert redone >= 40
+
+
+def test_radiant_exposure__forty_openings_sum_in_a_statement_and_agree_with_the_physics(
+        evaluate):
+    # A sum of forty E_i·F_i is longer than one line of working may be: a statement instead.
+    openings = "\n".join(
+        f"        - {{name: W{k}, width: 0.5 m, height: 0.5 m, x: {k % 10} m, "
+        f"y: {k // 10} m, emissive_power: 20 kW/m^2}}" for k in range(40))
+    package = evaluate(sheet(f"""
+  - id: bay
+    kind: radiant_exposure
+    title: A wall of windows
+    inputs:
+      emitters:
+{openings}
+      separation: 6 m
+      receiver: {{x: 4.75 m, y: 1.75 m}}
+"""))
+    emitters = [Emitter(k % 10, k // 10, 0.5, 0.5, 20_000.0) for k in range(40)]
+    r = results(package, "RAD.bay")
+    assert r["q"] == pytest.approx(incident_flux(emitters, 6.0, 4.75, 1.75), rel=1e-9)
+    printed = steps(package, "RAD.bay")
+    assert printed["q"].expr is None and printed["q"].yields == "q"
+    assert len([s for s in package.block("RAD.bay").output.steps
+                if s.group == "View factor to each emitter"]) == 40
