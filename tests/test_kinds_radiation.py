@@ -186,7 +186,9 @@ def test_radiation_exchange__ten_equal_shields_cut_the_flux_to_one_eleventh(eval
     assert len(results(package, "RAD.many")["shield_temperatures"]) == 10
     printed = steps(package, "RAD.many")
     assert printed["varepsilon_eff"].expr == "1 / R_total"
-    assert printed["R_total"].expr is None  # a statement: the sum of the resistances
+    assert printed["R_total"].expr == "R_p + " + " + ".join(f"R_s{n}" for n in range(1, 11))
+    # each shield of emissivity 0.8 adds 1/0.8 + 1/0.8 − 1 = 1.5 (Incropera 7th ed. §13.3.4)
+    assert printed["R_s10"].record()["result"] == "1.50"
 
 
 def test_radiation_exchange__body_in_large_enclosure(evaluate):

@@ -194,30 +194,37 @@ def _radiation_exchange(inp, out):
             label += ", each shield adding the resistance of one more gap"
         source = f"{INCROPERA}, Table 13.3" + (" and §13.3.4, Eq. 13.24" if pairs else "")
         if not _fits(expr):
-            # Too many shields for one line of working: each shield's resistance first.
-            sums = []
-            for k in range(len(pairs)):
-                n = k + 1
-                r = out.step(f"R_s{n}", f"1 / varepsilon_s{n}_1 + 1 / varepsilon_s{n}_2 - 1",
-                             {f"varepsilon_s{n}_1": ops[f"varepsilon_s{n}_1"],
-                              f"varepsilon_s{n}_2": ops[f"varepsilon_s{n}_2"]},
-                             1.0 / pairs[k][0] + 1.0 / pairs[k][1] - 1.0, "1",
-                             label="Added radiative resistance of the shield (times σ)",
-                             source=source, group="Shield resistances", item=_shield_name(k))
-                sums.append((f"R_s{n}", r))
+            # Too many shields for one line of working: the plates' and each shield's
+            # resistance first (dimensionless: resistance times area), then their sum.
             r_plates = out.step("R_p", "1 / varepsilon_1 + 1 / varepsilon_2 - 1",
                                 {"varepsilon_1": ops["varepsilon_1"],
                                  "varepsilon_2": ops["varepsilon_2"]},
                                 1.0 / e1 + 1.0 / e2 - 1.0, "1",
-                                label="Radiative resistance of the plates without shields "
-                                      "(times σ)", source=source)
-            total = out.statement("R_total", "Sum of the plates' resistance {r_p} and the "
-                                  "resistances of the {n} shields", 1.0 / result.
-                                  effective_emissivity, "1",
-                                  values={"r_p": r_plates, "n": Value(len(pairs), given=True)},
-                                  label="Total radiative resistance (times σ)")
+                                label="Resistance of the plates alone (dimensionless)",
+                                source=source)
+            resistances = {"R_p": r_plates}
+            for k in range(len(pairs)):
+                n = k + 1
+                resistances[f"R_s{n}"] = out.step(
+                    f"R_s{n}", f"1 / varepsilon_s{n}_1 + 1 / varepsilon_s{n}_2 - 1",
+                    {f"varepsilon_s{n}_1": ops[f"varepsilon_s{n}_1"],
+                     f"varepsilon_s{n}_2": ops[f"varepsilon_s{n}_2"]},
+                    1.0 / pairs[k][0] + 1.0 / pairs[k][1] - 1.0, "1",
+                    label="Resistance added by the shield (dimensionless)", source=source,
+                    group="Resistance added by each shield", item=_shield_name(k))
+            total_value = sum(r.si for r in resistances.values())
+            total_expr = " + ".join(resistances)
+            if _fits(total_expr):
+                total = out.step("R_total", total_expr, resistances, total_value, "1",
+                                 label="Total resistance (dimensionless)", source=source)
+            else:
+                total = out.statement("R_total", "Sum of the plates' resistance {r_p} and the "
+                                      "resistances added by the {n} shields", total_value,
+                                      "1", values={"r_p": r_plates,
+                                                   "n": Value(len(pairs), given=True)},
+                                      label="Total resistance (dimensionless)", source=source)
             eps_eff = out.step("varepsilon_eff", "1 / R_total", {"R_total": total},
-                               result.effective_emissivity, "1", label=label, source=source,
+                               1.0 / total_value, "1", label=label, source=source,
                                yields="effective_emissivity")
         else:
             eps_eff = out.step("varepsilon_eff", expr, dict(ops), result.effective_emissivity,
