@@ -600,8 +600,9 @@ _EXPOSURE_CAUTION = (SAFETY + " Separation and boundary-distance decisions belon
                      "code and a licensed engineer: this incident flux is one input to them, "
                      "not the decision.")
 
-_SEARCH = ("a grid over the openings' extent (plus 5 %), then a bounded optimiser (L-BFGS-B) "
-           "from the best grid peaks")
+_SEARCH = ("a grid over the openings' extent (plus {margin} of it), then a bounded optimiser "
+           "(L-BFGS-B) from the best grid peaks")
+_SEARCH_MARGIN = 0.05  # of the openings' extent, each side: the physics' own default
 
 
 @functools.lru_cache(maxsize=64)
@@ -650,8 +651,9 @@ def _radiant_exposure(inp, out):
                       label="The receiver point as given", yields="y_worst")
         where = "the receiver point"
     else:
-        found = worst_point(emitters, s)
-        values = {"s": out.input("separation")}
+        found = worst_point(emitters, s, margin=_SEARCH_MARGIN)
+        values = {"s": out.input("separation"),
+                  "margin": Value(_SEARCH_MARGIN, "1", "%", given=True)}
         px = out.statement("x_worst", "Global search of the receiving plane at separation {s}: "
                            + _SEARCH, found.x, "m", values=values,
                            label="Worst point of the receiving plane, x",
