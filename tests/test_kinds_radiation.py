@@ -336,13 +336,14 @@ def test_view_factor__element_defaults_to_the_centre_and_has_no_reverse_factor(e
     assert printed["F_12"].expr == "F_1 + F_2 + F_3 + F_4" and printed["F_12"].yields == "F12"
     corners = [s for s in block.output.steps if s.group == "Corner rectangles at the foot point"]
     assert [s.name for s in corners] == ["F_1", "F_2", "F_3", "F_4"]
-    for step in corners:
+    ratios = [("A₁", "B₁"), ("A₂", "B₁"), ("A₁", "B₂"), ("A₂", "B₂")]
+    for step, (a, b) in zip(corners, ratios):
         assert step.expr is None  # the corner factor has arctangents: a statement
         # each corner: Howell's B-3 at A = B = 1: 0.1385 (from memory)
         assert step.result.si == pytest.approx(0.1385, abs=5e-5)
         assert print_step(step, 3).statement == (
             "Howell's catalogue case B-3 (plane element under a corner of a parallel "
-            "rectangle) at A = 1.00 and B = 1.00")
+            f"rectangle) at A = |{a}| = 1.00 and B = |{b}| = 1.00")
 
 
 def test_view_factor__foot_point_beyond_the_rectangle_subtracts_corner_rectangles(evaluate):

@@ -31,12 +31,18 @@ from calcdoc.physics.viewfactors import (coaxial_disks, element_to_rectangle,
 
 __all__ = ["KINDS"]
 
-HOWELL = ("J. R. Howell, A Catalog of Radiation Heat Transfer Configuration Factors, 3rd ed., "
-          "University of Texas at Austin (2010)")
-INCROPERA = ("T. L. Bergman, A. S. Lavine, F. P. Incropera, D. P. DeWitt, Fundamentals of Heat "
-             "and Mass Transfer, 7th ed., Wiley (2011)")
-STEFAN_BOLTZMANN_LAW = ("Stefan–Boltzmann law, σ = 5.670374419×10⁻⁸ W/(m²·K⁴) (CODATA 2018, "
-                        "exact in the SI since 2019)")
+# Sources as the package cites them, "document (year), place" (calcdoc.references): the
+# references list holds each document once. Howell: J. R. Howell, A Catalog of Radiation Heat
+# Transfer Configuration Factors, 3rd ed., University of Texas at Austin (2010). Incropera:
+# T. L. Bergman, A. S. Lavine, F. P. Incropera, D. P. DeWitt, Fundamentals of Heat and Mass
+# Transfer, 7th ed., Wiley (2011).
+HOWELL = "Howell (2010)"
+INCROPERA = "Incropera (2011)"
+# The worst-point search and the minimum-separation solve are calcdoc's own method, with
+# scipy's optimisers
+SEARCH_METHOD = "calcdoc's global search (scipy.optimize.minimize, L-BFGS-B)"
+BRENT = "Brent's method (scipy.optimize.brentq) on a bracketing scan"
+STEFAN_BOLTZMANN_LAW = "Stefan–Boltzmann law, σ of CODATA 2018 (exact in the SI since 2019)"
 SAFETY = ("This calculation supports, and does not replace, the judgement of a licensed engineer "
           "and the requirements of the local code and the authority having jurisdiction.")
 
@@ -458,6 +464,7 @@ def _view_factor(inp, out):
 
 
 _CORNERS = (("A_1", "B_1"), ("A_2", "B_1"), ("A_1", "B_2"), ("A_2", "B_2"))
+_SUBSCRIPT = {"A_1": "A₁", "A_2": "A₂", "B_1": "B₁", "B_2": "B₂"}
 _CORNER_NAMES = ("towards the right and top edges", "towards the left and top edges",
                  "towards the right and bottom edges", "towards the left and bottom edges")
 
@@ -512,7 +519,8 @@ def _element_to_rectangle(inp, out):
             sign = 1.0 if ratio_a * ratio_b > 0 else -1.0
             part = sign * float(element_to_rectangle_corner(abs(ratio_a), abs(ratio_b), 1.0))
             text = ("Howell's catalogue case B-3 (plane element under a corner of a parallel "
-                    "rectangle) at A = {A} and B = {B}")
+                    f"rectangle) at A = |{_SUBSCRIPT[name_a]}| = {{A}} and "
+                    f"B = |{_SUBSCRIPT[name_b]}| = {{B}}")
             if sign < 0:
                 text += ", taken negative: this corner rectangle reaches beyond the rectangle"
         parts[f"F_{k}"] = out.statement(f"F_{k}", text, part, "1", values=values,
@@ -657,13 +665,13 @@ def _radiant_exposure(inp, out):
         px = out.statement("x_worst", "Global search of the receiving plane at separation {s}: "
                            + _SEARCH, found.x, "m", values=values,
                            label="Worst point of the receiving plane, x",
-                           source="scipy.optimize.minimize (L-BFGS-B)", yields="x_worst")
+                           source=SEARCH_METHOD, yields="x_worst")
         py = out.statement("y_worst", "The same search: y of the point of highest incident "
                            "flux", found.y, "m", label="Worst point of the receiving plane, y",
-                           source="scipy.optimize.minimize (L-BFGS-B)", yields="y_worst")
+                           source=SEARCH_METHOD, yields="y_worst")
         where = "the worst point"
         out.note("The worst point of several openings need not face any of them: between two "
-                 "openings both contribute.", "scipy.optimize.minimize (L-BFGS-B)")
+                 "openings both contribute.", SEARCH_METHOD)
 
     factors = []
     for k, (emitter, name) in enumerate(zip(emitters, names)):
@@ -724,12 +732,12 @@ def _radiant_exposure(inp, out):
                           values={"limit": q_limit, "q": Value(minimum.q, W_M2, KW_M2),
                                   "x": Value(minimum.x, "m"), "y": Value(minimum.y, "m")},
                           label=f"Minimum separation for {where}",
-                          source="Brent's method (scipy.optimize.brentq) on a bracketing scan",
+                          source=BRENT,
                           yields="minimum_separation")
             out.note("The minimum separation is the separation beyond which the flux never "
                      "exceeds the limit: the last crossing on a geometric scan of separations "
                      "is bracketed and then solved by Brent's method, not by stepping.",
-                     "scipy.optimize.brentq")
+                     BRENT)
     else:
         out.not_reached("utilisation", "no limit given")
         out.not_reached("minimum_separation", "no limit given")
