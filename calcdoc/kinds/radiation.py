@@ -442,11 +442,8 @@ def _view_factor(inp, out):
                      1.0 + (1.0 + big_r2.si ** 2) / big_r1.si ** 2,
                      source=f"{HOWELL}, case C-41")
         # The catalogue's (X − √(X² − 4(R₂/R₁)²))/2, multiplied out so that a small disk 2
-        # loses no digits to cancellation (the physics evaluates it so, too). The root is a
-        # power 0.5: a step naming sqrt is refused (expressions.names_in counts the function
-        # as an operand).
-        f = out.step("F_12",
-                     "2 * (R_2 / R_1) ** 2 / (X + (X ** 2 - 4 * (R_2 / R_1) ** 2) ** 0.5)",
+        # loses no digits to cancellation (the physics evaluates it so, too).
+        f = out.step("F_12", "2 * (R_2 / R_1) ** 2 / (X + sqrt(X ** 2 - 4 * (R_2 / R_1) ** 2))",
                      {"R_1": big_r1, "R_2": big_r2, "X": x}, f12,
                      label="Coaxial parallel disks, disk 1 to disk 2: the catalogue's "
                            "½[X − √(X² − 4(R₂/R₁)²)] with the root rationalised",
