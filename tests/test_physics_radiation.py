@@ -332,42 +332,50 @@ def test_minimum_separation__given_point_never_exceeding_the_limit_gives_zero():
 
 # --- bad input ---------------------------------------------------------------------------------
 
-@pytest.mark.parametrize("call, quantity", [
-    (lambda: emissive_power(1000.0, 0.0), "emissivity"),
-    (lambda: emissive_power(1000.0, 1.01), "emissivity"),
-    (lambda: emissive_power(1000.0, -0.2), "emissivity"),
-    (lambda: emissive_power(1000.0, float("nan")), "emissivity"),
-    (lambda: emissive_power(0.0, 0.5), "temperature"),
-    (lambda: emissive_power(np.array([300.0, -5.0]), 0.5), "temperature"),
-    (lambda: net_flux_to_surroundings(300.0, -1.0, 0.9), "surroundings_temperature"),
-    (lambda: parallel_plates_exchange(500.0, 300.0, 0.9, 1.2), "emissivity_2"),
+@pytest.mark.parametrize("call, quantity, index", [
+    (lambda: emissive_power(1000.0, 0.0), "emissivity", None),
+    (lambda: emissive_power(1000.0, 1.01), "emissivity", None),
+    (lambda: emissive_power(1000.0, -0.2), "emissivity", None),
+    (lambda: emissive_power(1000.0, float("nan")), "emissivity", None),
+    (lambda: emissive_power(0.0, 0.5), "temperature", None),
+    (lambda: emissive_power(np.array([300.0, -5.0]), 0.5), "temperature", None),
+    (lambda: net_flux_to_surroundings(300.0, -1.0, 0.9), "surroundings_temperature", None),
+    (lambda: parallel_plates_exchange(500.0, 300.0, 0.9, 1.2), "emissivity_2", None),
     (lambda: parallel_plates_exchange(500.0, 300.0, 0.9, 0.9, shields=[(0.5, 0.0)]),
-     "shields[1].emissivity_2"),
-    (lambda: parallel_plates_exchange(500.0, 300.0, 0.9, 0.9, shields=[(0.5,)]), "shields[1]"),
-    (lambda: enclosed_body_exchange(500.0, 300.0, 0.9, 0.9, 5.0, 2.0), "area_1"),
-    (lambda: enclosed_body_exchange(500.0, 300.0, 0.9, 0.9, None, 2.0), "area_1"),
-    (lambda: enclosed_body_exchange(500.0, 300.0, 0.9, 0.9, -1.0, 2.0), "area_1"),
+     "shields.emissivity_2", 0),
+    (lambda: parallel_plates_exchange(500.0, 300.0, 0.9, 0.9,
+                                      shields=[(0.5, 0.5), (1.5, 0.5)]),
+     "shields.emissivity_1", 1),
+    (lambda: parallel_plates_exchange(500.0, 300.0, 0.9, 0.9, shields=[(0.5,)]), "shields", 0),
+    (lambda: enclosed_body_exchange(500.0, 300.0, 0.9, 0.9, 5.0, 2.0), "area_1", None),
+    (lambda: enclosed_body_exchange(500.0, 300.0, 0.9, 0.9, None, 2.0), "area_1", None),
+    (lambda: enclosed_body_exchange(500.0, 300.0, 0.9, 0.9, -1.0, 2.0), "area_1", None),
     (lambda: two_surface_enclosure_exchange(500.0, 300.0, 0.9, 0.9, 3.0, 1.0, 0.5),
-     "view_factor"),
+     "view_factor", None),
     (lambda: two_surface_enclosure_exchange(500.0, 300.0, 0.9, 0.9, 1.0, 1.0, 0.0),
-     "view_factor"),
-    (lambda: two_surface_enclosure_exchange(500.0, 300.0, 0.9, 0.9, 1.0, -1.0, 0.5), "area_2"),
-    (lambda: incident_flux([], 1.0, 0.0, 0.0), "emitters"),
-    (lambda: worst_point([], 1.0), "emitters"),
+     "view_factor", None),
+    (lambda: two_surface_enclosure_exchange(500.0, 300.0, 0.9, 0.9, 1.0, -1.0, 0.5), "area_2",
+     None),
+    (lambda: incident_flux([], 1.0, 0.0, 0.0), "emitters", None),
+    (lambda: worst_point([], 1.0), "emitters", None),
     (lambda: incident_flux([Emitter(0.0, 0.0, -1.0, 1.0, 1e4)], 1.0, 0.0, 0.0),
-     "emitters[1].width"),
+     "emitters.width", 0),
     (lambda: incident_flux([Emitter(0.0, 0.0, 1.0, 1.0, 0.0)], 1.0, 0.0, 0.0),
-     "emitters[1].emissive_power"),
-    (lambda: incident_flux(DOORS, -2.0, 0.0, 0.0), "separation"),
+     "emitters.emissive_power", 0),
+    (lambda: incident_flux(DOORS, -2.0, 0.0, 0.0), "separation", None),
+    (lambda: incident_flux(DOORS, 2.0, float("nan"), 0.0), "x", None),
     (lambda: incident_flux(DOORS + [Emitter(1.0, 1.0, 1.0, 1.0, 1e4)], 1.0, 0.0, 0.0),
-     "emitters[3]"),
-    (lambda: minimum_separation(DOORS, 0.0), "limit"),
-    (lambda: minimum_separation(DOORS, 1e4, receiver=(float("inf"), 0.0)), "receiver.x"),
+     "emitters", 2),
+    (lambda: minimum_separation(DOORS, 0.0), "limit", None),
+    (lambda: minimum_separation(DOORS, 1e4, receiver=(float("inf"), 0.0)), "receiver", 0),
 ])
-def test_bad_input__raises_physics_range_error(call, quantity):
+def test_bad_input__raises_physics_range_error_with_the_parameter_name(call, quantity, index):
+    # The function's own parameter name, and for an element of a list argument its position
+    # (from 0): the kind maps these to its input paths (Kind.input_names).
     with pytest.raises(PhysicsRangeError) as info:
         call()
     assert info.value.quantity == quantity
+    assert info.value.index == index
 
 
 def test_bad_emissivity__message_says_expected_and_got():

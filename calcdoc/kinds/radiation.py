@@ -1,55 +1,53 @@
 """Surface radiation kinds: emission, two-surface exchange, view factors, radiant exposure.
 
 The physics is in :mod:`calcdoc.physics.radiation`, :mod:`calcdoc.physics.viewfactors` and
-:mod:`calcdoc.physics.exposure`; this module declares the inputs and results of FORMAT.md, records
-each step with its numbers substituted, and draws the two radiant-exposure pictures.
+:mod:`calcdoc.physics.exposure`; this module declares the inputs and results of FORMAT.md and
+records the working as data: each closed-form step in the formula language over named operands,
+each view factor whose closed form needs an arctangent (which the formula language does not
+have) as a statement naming its catalogue case after the dimensionless ratios it takes, and the
+two radiant-exposure figures as :class:`~calcdoc.data.FigureData`.
 """
 
 from __future__ import annotations
 
 import functools
-import re
 
 import numpy as np
 
-from calcdoc.kinds.base import (ABSOLUTE, REQUIRED, Choice, Figure, Items, Kind, Quantity, Record,
+from calcdoc.data import Axis, Box, FigureData, Line, Mark, Point, Value, phrase
+from calcdoc.errors import MissingInput
+from calcdoc.expressions import ExpressionError, parse_expression
+from calcdoc.kinds.base import (ABSOLUTE, REQUIRED, Choice, Items, Kind, Quantity, Record,
                                 ResultSpec, Text)
 from calcdoc.physics import PhysicsRangeError
 from calcdoc.physics.exposure import (Emitter, MinimumSeparation, flux_against_separation,
                                       incident_flux, minimum_separation, worst_point)
-from calcdoc.physics.radiation import (STEFAN_BOLTZMANN, emissive_power,
-                                       enclosed_body_exchange, net_flux_to_surroundings,
-                                       parallel_plates_exchange, two_surface_enclosure_exchange)
+from calcdoc.physics.radiation import (emissive_power, enclosed_body_exchange,
+                                       net_flux_to_surroundings, parallel_plates_exchange,
+                                       two_surface_enclosure_exchange)
 from calcdoc.physics.viewfactors import (coaxial_disks, element_to_rectangle,
                                          element_to_rectangle_corner, opposed_rectangles,
                                          perpendicular_rectangles, reciprocal_view_factor)
-from calcdoc.render.numbers import format_quantity, latex_quantity
 
 __all__ = ["KINDS"]
 
-HOWELL = ("J. R. Howell, A Catalog of Radiation Heat Transfer Configuration Factors, 3rd ed., "
-          "University of Texas at Austin (2010)")
-INCROPERA = ("T. L. Bergman, A. S. Lavine, F. P. Incropera, D. P. DeWitt, Fundamentals of Heat "
-             "and Mass Transfer, 7th ed., Wiley (2011)")
-STEFAN_BOLTZMANN_LAW = ("Stefan–Boltzmann law, σ = 5.670374419×10⁻⁸ W/(m²·K⁴) (CODATA 2018, "
-                        "exact in the SI since 2019)")
+# Sources as the package cites them, "document (year), place" (calcdoc.references): the
+# references list holds each document once. Howell: J. R. Howell, A Catalog of Radiation Heat
+# Transfer Configuration Factors, 3rd ed., University of Texas at Austin (2010). Incropera:
+# T. L. Bergman, A. S. Lavine, F. P. Incropera, D. P. DeWitt, Fundamentals of Heat and Mass
+# Transfer, 7th ed., Wiley (2011).
+HOWELL = "Howell (2010)"
+INCROPERA = "Incropera (2011)"
+# The worst-point search and the minimum-separation solve are calcdoc's own method, with
+# scipy's optimisers
+SEARCH_METHOD = "calcdoc's global search (scipy.optimize.minimize, L-BFGS-B)"
+BRENT = "Brent's method (scipy.optimize.brentq) on a bracketing scan"
+STEFAN_BOLTZMANN_LAW = "Stefan–Boltzmann law, σ of CODATA 2018 (exact in the SI since 2019)"
 SAFETY = ("This calculation supports, and does not replace, the judgement of a licensed engineer "
           "and the requirements of the local code and the authority having jurisdiction.")
 
 W_M2 = "W/m^2"
-SIGMA_UNIT = "W/(m^2*K^4)"
-
-
-def _sigma() -> str:
-    return latex_quantity(STEFAN_BOLTZMANN, SIGMA_UNIT, None, 7)
-
-
-def _kelvin(out, value: float) -> str:
-    return out.q(value, "K", "K")
-
-
-def _number(out, value: float) -> str:
-    return out.q(value, "1")
+KW_M2 = "kW/m^2"
 
 
 def _temperature(name: str, meaning: str, default=REQUIRED) -> Quantity:
@@ -71,38 +69,51 @@ def _area(name: str, meaning: str, default=None) -> Quantity:
     return Quantity(name, meaning, default=default, unit="m^2", greater_than=0.0)
 
 
+def _fits(expr: str) -> bool:
+    """Whether an expression is within the formula language's length and depth limits (a sum
+    over very many shields or emitters is not)."""
+    try:
+        parse_expression(expr)
+    except ExpressionError:
+        return False
+    return True
+
+
+def _in_group(out, group: str, item: str) -> None:
+    """Put the statement just recorded in a group of like items (one per list item).
+
+    ``BlockOutput.statement`` takes no ``group``/``item`` (``step`` does); a view factor with an
+    arctangent per emitter is still one formula applied to each emitter."""
+    out.steps[-1].group = group
+    out.steps[-1].item = item
+
+
 # ============================================================================ surface_emission
 
 
 def _surface_emission(inp, out):
     t, eps = inp.temperature, inp.emissivity
-    e = emissive_power(t, eps)
-    out.step("E", r"\varepsilon \sigma T^{4}",
-             rf"{_number(out, eps)} \cdot {_sigma()} \cdot \left({_kelvin(out, t)}\right)^{{4}}",
-             e, W_M2, label="Emissive power", source=STEFAN_BOLTZMANN_LAW)
-    out.result("E", e)
+    operands = {"varepsilon": out.input("emissivity"), "T": out.input("temperature")}
+    e = out.step("E", "varepsilon * sigma * T ** 4", operands, emissive_power(t, eps), W_M2,
+                 label="Emissive power", source=STEFAN_BOLTZMANN_LAW, yields="E")
     if inp.area is not None:
-        out.step("Q", "E A", rf"{out.q(e, W_M2)} \cdot {out.q(inp.area, 'm^2')}", e * inp.area,
-                 "W", label="Emitted power over the area")
-        out.result("Q", e * inp.area)
+        area = out.input("area")
+        out.step("Q", "E * A", {"E": e, "A": area}, e.si * inp.area, "W",
+                 label="Emitted power over the area", yields="Q")
     else:
         out.not_reached("Q", "no area given")
     if inp.surroundings_temperature is not None:
-        t_sur = inp.surroundings_temperature
-        q_net = net_flux_to_surroundings(t, t_sur, eps)
-        out.step("q_{net}", r"\varepsilon \sigma \left(T^{4} - T_{sur}^{4}\right)",
-                 rf"{_number(out, eps)} \cdot {_sigma()} \cdot \left(\left({_kelvin(out, t)}"
-                 rf"\right)^{{4}} - \left({_kelvin(out, t_sur)}\right)^{{4}}\right)",
-                 q_net, W_M2, label="Net flux to the surroundings (positive outward)",
-                 source=f"{INCROPERA}, Eq. 1.7")
-        out.result("q_net", q_net)
+        q_net = net_flux_to_surroundings(t, inp.surroundings_temperature, eps)
+        q = out.step("q_net", "varepsilon * sigma * (T ** 4 - T_sur ** 4)",
+                     {**operands, "T_sur": out.input("surroundings_temperature")}, q_net, W_M2,
+                     label="Net flux to the surroundings (positive outward)",
+                     source=f"{INCROPERA}, Eq. 1.7", yields="q_net")
         out.note("The surroundings are large, isothermal and enclose the surface, so they act as "
                  "a black body whatever their own emissivity.", f"{INCROPERA}, §1.2.3")
         if inp.area is not None:
-            out.step("Q_{net}", "q_{net} A",
-                     rf"{out.q(q_net, W_M2)} \cdot {out.q(inp.area, 'm^2')}", q_net * inp.area,
-                     "W", label="Net power to the surroundings")
-            out.result("Q_net", q_net * inp.area)
+            out.step("Q_net", "q_net * A", {"q_net": q, "A": out.input("area")},
+                     q.si * inp.area, "W", label="Net power to the surroundings",
+                     yields="Q_net")
         else:
             out.not_reached("Q_net", "no area given")
     else:
@@ -140,119 +151,159 @@ SURFACE_EMISSION = Kind(
 # ============================================================================ radiation_exchange
 
 
-def _refuse(name: str, value, expected: str):
-    raise PhysicsRangeError(name, value, expected)  # value None: the input is missing
+def _check_exchange_inputs(inp):
+    """Refuse inputs that the configuration does not use; ask for those it needs."""
+    config = inp.configuration
+    if inp.view_factor is not None and config != "general":
+        raise PhysicsRangeError("view_factor", inp.view_factor,
+                                f"no view_factor for configuration {config} (it is for "
+                                "configuration general only)")
+    if inp.shields and config != "parallel_plates":
+        raise PhysicsRangeError("shields.emissivity_1", inp.shields[0]["emissivity_1"],
+                                f"no shields for configuration {config} (they are for "
+                                "parallel_plates only)", index=0)
+    if inp.emissivity_2 is None and (config != "enclosed_body" or inp.area_2 is not None):
+        raise MissingInput("emissivity_2", f"emissivity_2 for configuration {config}")
+    if config == "general":
+        for name in ("area_1", "area_2", "view_factor"):
+            if inp[name] is None:
+                raise MissingInput(name, f"{name} for configuration general")
+    if config == "enclosed_body" and inp.area_2 is not None and inp.area_1 is None:
+        raise MissingInput("area_1", "area_1 (the body's area) when area_2 is given")
+
+
+def _shield_name(k: int) -> str:
+    return f"shield {k + 1}"
 
 
 def _radiation_exchange(inp, out):
+    _check_exchange_inputs(inp)
     config = inp.configuration
     t1, t2, e1, e2 = inp.temperature_1, inp.temperature_2, inp.emissivity_1, inp.emissivity_2
-    a1, a2, f12 = inp.area_1, inp.area_2, inp.view_factor
     shields = inp.shields or []
-    if f12 is not None and config != "general":
-        _refuse("view_factor", f12, f"no view_factor for configuration {config} (it is for "
-                "configuration general only)")
-    if shields and config != "parallel_plates":
-        _refuse("shields[0].emissivity_1", shields[0]["emissivity_1"],
-                f"no shields for configuration {config} (they are for parallel_plates only)")
-    if e2 is None and (config != "enclosed_body" or a2 is not None):
-        _refuse("emissivity_2", None, f"emissivity_2 for configuration {config}")
-    if config == "general":
-        for name, value in (("area_1", a1), ("area_2", a2), ("view_factor", f12)):
-            if value is None:
-                _refuse(name, None, f"{name} for configuration general")
-    if config == "enclosed_body" and a2 is not None and a1 is None:
-        _refuse("area_1", None, "area_1 (the body's area) when area_2 is given")
+    ops = {"varepsilon_1": out.input("emissivity_1")}
+    if e2 is not None:
+        ops["varepsilon_2"] = out.input("emissivity_2")
 
-    dt4 = STEFAN_BOLTZMANN * (t1**4 - t2**4)
-    out.step(r"E_{b1} - E_{b2}", r"\sigma \left(T_{1}^{4} - T_{2}^{4}\right)",
-             rf"{_sigma()} \cdot \left(\left({_kelvin(out, t1)}\right)^{{4}} - "
-             rf"\left({_kelvin(out, t2)}\right)^{{4}}\right)",
-             dt4, W_M2, label="Difference of black-body emissive powers",
-             source=STEFAN_BOLTZMANN_LAW)
-
-    eps_eff = r"\varepsilon_{\mathrm{eff}}"
     if config == "parallel_plates":
         pairs = [(s["emissivity_1"], s["emissivity_2"]) for s in shields]
         result = parallel_plates_exchange(t1, t2, e1, e2, shields=pairs)
-        formula = r"\frac{1}{\frac{1}{\varepsilon_{1}} + \frac{1}{\varepsilon_{2}} - 1"
-        numbers = (rf"\frac{{1}}{{\frac{{1}}{{{_number(out, e1)}}} + "
-                   rf"\frac{{1}}{{{_number(out, e2)}}} - 1")
-        for a, b in pairs:
-            numbers += (rf" + \frac{{1}}{{{_number(out, a)}}} + \frac{{1}}{{{_number(out, b)}}}"
-                        " - 1")
+        terms = ["1 / varepsilon_1 + 1 / varepsilon_2 - 1"]
+        for k in range(len(pairs)):
+            n = k + 1
+            ops[f"varepsilon_s{n}_1"] = out.input(f"shields[{k}].emissivity_1")
+            ops[f"varepsilon_s{n}_2"] = out.input(f"shields[{k}].emissivity_2")
+            terms.append(f"1 / varepsilon_s{n}_1 + 1 / varepsilon_s{n}_2 - 1")
+        expr = "1 / (" + " + ".join(terms) + ")"
+        label = "Effective emissivity of large parallel plates"
         if pairs:
-            formula += (r" + \sum_{k}\left(\frac{1}{\varepsilon_{k,1}} + "
-                        r"\frac{1}{\varepsilon_{k,2}} - 1\right)")
-        out.step(eps_eff, formula + "}", numbers + "}", result.effective_emissivity, "1",
-                 label="Effective emissivity of large parallel plates"
-                       + (f" with {len(pairs)} shield(s)" if pairs else ""),
-                 source=f"{INCROPERA}, Table 13.3 and §13.3.4 (radiation shields)")
+            label += ", each shield adding the resistance of one more gap"
+        source = f"{INCROPERA}, Table 13.3" + (" and §13.3.4, Eq. 13.24" if pairs else "")
+        if not _fits(expr):
+            # Too many shields for one line of working: the plates' and each shield's
+            # resistance first (dimensionless: resistance times area), then their sum.
+            r_plates = out.step("R_p", "1 / varepsilon_1 + 1 / varepsilon_2 - 1",
+                                {"varepsilon_1": ops["varepsilon_1"],
+                                 "varepsilon_2": ops["varepsilon_2"]},
+                                1.0 / e1 + 1.0 / e2 - 1.0, "1",
+                                label="Resistance of the plates alone (dimensionless)",
+                                source=source)
+            resistances = {"R_p": r_plates}
+            for k in range(len(pairs)):
+                n = k + 1
+                resistances[f"R_s{n}"] = out.step(
+                    f"R_s{n}", f"1 / varepsilon_s{n}_1 + 1 / varepsilon_s{n}_2 - 1",
+                    {f"varepsilon_s{n}_1": ops[f"varepsilon_s{n}_1"],
+                     f"varepsilon_s{n}_2": ops[f"varepsilon_s{n}_2"]},
+                    1.0 / pairs[k][0] + 1.0 / pairs[k][1] - 1.0, "1",
+                    label="Resistance added by the shield (dimensionless)", source=source,
+                    group="Resistance added by each shield", item=_shield_name(k))
+            total_value = sum(r.si for r in resistances.values())
+            total_expr = " + ".join(resistances)
+            if _fits(total_expr):
+                total = out.step("R_total", total_expr, resistances, total_value, "1",
+                                 label="Total resistance (dimensionless)", source=source)
+            else:
+                total = out.statement("R_total", "Sum of the plates' resistance {r_p} and the "
+                                      "resistances added by the {n} shields", total_value,
+                                      "1", values={"r_p": r_plates,
+                                                   "n": Value(len(pairs), given=True)},
+                                      label="Total resistance (dimensionless)", source=source)
+            eps_eff = out.step("varepsilon_eff", "1 / R_total", {"R_total": total},
+                               1.0 / total_value, "1", label=label, source=source,
+                               yields="effective_emissivity")
+        else:
+            eps_eff = out.step("varepsilon_eff", expr, dict(ops), result.effective_emissivity,
+                               "1", label=label, source=source, yields="effective_emissivity")
         if pairs:
             out.note("Shields are thin, conduct well (one temperature through each) and are large "
                      "enough that each surface sees only its neighbours; a shield's "
-                     "emissivity_1 is its face towards surface 1.",
-                     f"{INCROPERA}, §13.3.4")
+                     "emissivity_1 is its face towards surface 1.", f"{INCROPERA}, §13.3.4")
     elif config == "enclosed_body":
-        result = enclosed_body_exchange(t1, t2, e1, e2 if e2 is not None else 1.0, a1, a2)
-        if a2 is None:
-            out.step(eps_eff, r"\varepsilon_{1}", _number(out, e1), result.effective_emissivity,
-                     "1", label="Effective emissivity, small convex body in a large enclosure "
-                                "(A₁/A₂ → 0)", source=f"{INCROPERA}, Table 13.3")
+        result = enclosed_body_exchange(t1, t2, e1, e2 if e2 is not None else 1.0, inp.area_1,
+                                        inp.area_2)
+        if inp.area_2 is None:
+            eps_eff = out.step("varepsilon_eff", "varepsilon_1",
+                               {"varepsilon_1": ops["varepsilon_1"]},
+                               result.effective_emissivity, "1",
+                               label="Effective emissivity, small convex body in a large "
+                                     "enclosure (A₁/A₂ → 0)",
+                               source=f"{INCROPERA}, Table 13.3",
+                               yields="effective_emissivity")
         else:
-            out.step(eps_eff,
-                     r"\frac{1}{\frac{1}{\varepsilon_{1}} + \frac{1 - \varepsilon_{2}}"
-                     r"{\varepsilon_{2}} \frac{A_{1}}{A_{2}}}",
-                     rf"\frac{{1}}{{\frac{{1}}{{{_number(out, e1)}}} + "
-                     rf"\frac{{1 - {_number(out, e2)}}}{{{_number(out, e2)}}} \cdot "
-                     rf"\frac{{{out.q(a1, 'm^2')}}}{{{out.q(a2, 'm^2')}}}}}",
-                     result.effective_emissivity, "1",
-                     label="Effective emissivity, convex body inside an enclosure",
-                     source=f"{INCROPERA}, Table 13.3")
+            eps_eff = out.step("varepsilon_eff",
+                               "1 / (1 / varepsilon_1 + (1 - varepsilon_2) / varepsilon_2 * "
+                               "A_1 / A_2)",
+                               {**ops, "A_1": out.input("area_1"), "A_2": out.input("area_2")},
+                               result.effective_emissivity, "1",
+                               label="Effective emissivity, convex body inside an enclosure",
+                               source=f"{INCROPERA}, Table 13.3",
+                               yields="effective_emissivity")
         out.note("The body is convex (it does not see itself, F₁₂ = 1) and the enclosure is "
                  "closed; A₁ ≤ A₂.", f"{INCROPERA}, Table 13.3")
     else:
-        result = two_surface_enclosure_exchange(t1, t2, e1, e2, a1, a2, f12)
-        out.step(eps_eff,
-                 r"\frac{1}{\frac{1 - \varepsilon_{1}}{\varepsilon_{1}} + \frac{1}{F_{12}} + "
-                 r"\frac{1 - \varepsilon_{2}}{\varepsilon_{2}} \frac{A_{1}}{A_{2}}}",
-                 rf"\frac{{1}}{{\frac{{1 - {_number(out, e1)}}}{{{_number(out, e1)}}} + "
-                 rf"\frac{{1}}{{{_number(out, f12)}}} + "
-                 rf"\frac{{1 - {_number(out, e2)}}}{{{_number(out, e2)}}} \cdot "
-                 rf"\frac{{{out.q(a1, 'm^2')}}}{{{out.q(a2, 'm^2')}}}}}",
-                 result.effective_emissivity, "1",
-                 label="Exchange factor of a closed two-surface enclosure",
-                 source=f"{INCROPERA}, §13.3.3, Eq. 13.23")
+        result = two_surface_enclosure_exchange(t1, t2, e1, e2, inp.area_1, inp.area_2,
+                                                inp.view_factor)
+        eps_eff = out.step("varepsilon_eff",
+                           "1 / ((1 - varepsilon_1) / varepsilon_1 + 1 / F_12 + "
+                           "(1 - varepsilon_2) / varepsilon_2 * A_1 / A_2)",
+                           {**ops, "F_12": out.input("view_factor"),
+                            "A_1": out.input("area_1"), "A_2": out.input("area_2")},
+                           result.effective_emissivity, "1",
+                           label="Exchange factor of a closed two-surface enclosure",
+                           source=f"{INCROPERA}, §13.3.3, Eq. 13.23",
+                           yields="effective_emissivity")
         out.note("The two surfaces close the enclosure (F₁₁ = 1 − F₁₂, F₂₂ = 1 − F₂₁); "
                  "A₁·F₁₂ ≤ A₂ is enforced.", f"{INCROPERA}, §13.3.3")
 
-    out.step("q", rf"{eps_eff} \left(E_{{b1}} - E_{{b2}}\right)",
-             rf"{_number(out, result.effective_emissivity)} \cdot {out.q(dt4, W_M2)}",
-             result.q, W_M2, label="Net flux per unit area of surface 1 (positive 1 → 2)")
-    out.result("q", result.q)
-    out.result("effective_emissivity", result.effective_emissivity)
-    if a1 is not None:
-        out.step("Q", "q A_{1}", rf"{out.q(result.q, W_M2)} \cdot {out.q(a1, 'm^2')}",
-                 result.q * a1, "W", label="Net power from surface 1 to surface 2")
-        out.result("Q", result.q * a1)
+    temperatures = {"T_1": out.input("temperature_1"), "T_2": out.input("temperature_2")}
+    q = out.step("q", "varepsilon_eff * sigma * (T_1 ** 4 - T_2 ** 4)",
+                 {"varepsilon_eff": eps_eff, **temperatures}, result.q, W_M2,
+                 label="Net flux per unit area of surface 1 (positive 1 → 2)",
+                 source=STEFAN_BOLTZMANN_LAW, yields="q")
+    if inp.area_1 is not None:
+        out.step("Q", "q * A_1", {"q": q, "A_1": out.input("area_1")}, result.q * inp.area_1,
+                 "W", label="Net power from surface 1 to surface 2", yields="Q")
     else:
         out.not_reached("Q", "no area_1 given")
     if result.shield_temperatures:
-        faces = [e1] + [e for pair in pairs for e in pair] + [e2]
-        previous = t1
+        # Gap k lies between the face before it (surface 1 or shield k's face towards surface
+        # 2) and shield k + 1's face towards surface 1; every gap carries the same net flux.
+        previous, previous_name, previous_face = temperatures["T_1"], "T_1", "varepsilon_1"
         for k, temperature in enumerate(result.shield_temperatures):
-            a, b = faces[2 * k], faces[2 * k + 1]
-            out.step(rf"T_{{s{k + 1}}}",
-                     r"\left[T_{k-1}^{4} - \frac{q}{\sigma}\left(\frac{1}{\varepsilon_{a}} + "
-                     r"\frac{1}{\varepsilon_{b}} - 1\right)\right]^{1/4}",
-                     rf"\left[\left({_kelvin(out, previous)}\right)^{{4}} - "
-                     rf"\frac{{{out.q(result.q, W_M2)}}}{{{_sigma()}}}\left("
-                     rf"\frac{{1}}{{{_number(out, a)}}} + \frac{{1}}{{{_number(out, b)}}} - 1"
-                     r"\right)\right]^{1/4}",
-                     temperature, "K", display_unit="degC",
-                     label=f"Temperature of shield {k + 1} (equal net flux through every gap)",
-                     source=f"{INCROPERA}, §13.3.4")
-            previous = temperature
+            n = k + 1
+            face = f"varepsilon_s{n}_1"
+            name = f"T_s{n}"
+            previous = out.step(
+                name, f"({previous_name} ** 4 - q / sigma * (1 / {previous_face} + 1 / {face} "
+                "- 1)) ** 0.25",
+                {previous_name: previous, "q": q, previous_face: ops[previous_face],
+                 face: ops[face]},
+                temperature, "K", temperature=ABSOLUTE,
+                label=f"Temperature of {_shield_name(k)} (the same net flux crosses every gap)",
+                source=f"{INCROPERA}, §13.3.4", group="Shield temperatures",
+                item=_shield_name(k))
+            previous_name, previous_face = name, f"varepsilon_s{n}_2"
         out.result("shield_temperatures", list(result.shield_temperatures))
     elif config == "parallel_plates":
         out.not_reached("shield_temperatures", "no shields")
@@ -298,6 +349,9 @@ RADIATION_EXCHANGE = Kind(
     compute=_radiation_exchange,
     caution=SAFETY,
     references=(STEFAN_BOLTZMANN_LAW, INCROPERA),
+    input_names={"shields": "shields[{index}].emissivity_1",
+                 "shields.emissivity_1": "shields[{index}].emissivity_1",
+                 "shields.emissivity_2": "shields[{index}].emissivity_2"},
 )
 
 
@@ -321,135 +375,167 @@ def _check_geometry(inp):
         value = inp[name]
         if value is not None and name not in wanted:
             users = [g for g, names in _GEOMETRY_INPUTS.items() if name in names]
-            _refuse(name, value, f"only the inputs {', '.join(wanted)} for geometry {geometry} "
-                    f"({name} is for {' or '.join(users)})")
+            raise PhysicsRangeError(name, value, f"only the inputs {', '.join(wanted)} for "
+                                    f"geometry {geometry} ({name} is for "
+                                    f"{' or '.join(users)})")
         if value is None and name in wanted and name not in _OPTIONAL:
-            _refuse(name, None, f"{name} for geometry {geometry}")
+            raise MissingInput(name, f"{name} for geometry {geometry}")
+
+
+def _catalogue(out, case: str, what: str, ratios: dict, value: float):
+    """Record a catalogue view factor as a statement after its ratios (its closed form has
+    arctangents, which the formula language does not have)."""
+    places = " and ".join(f"{name} = {{{name}}}" for name in ratios)
+    return out.statement("F_12", f"Howell's catalogue case {case} ({what}) at {places}", value,
+                         "1", values=ratios, label=f"View factor, {what}",
+                         source=f"{HOWELL}, case {case}", yields="F12")
 
 
 def _view_factor(inp, out):
     _check_geometry(inp)
     geometry = inp.geometry
-    m = lambda v: out.q(v, "m")  # noqa: E731 - a short local formatter
+    f21_equal = False
     if geometry == "opposed_rectangles":
-        a, b, c = inp.width, inp.height, inp.separation
-        x, y = a / c, b / c
-        out.step("X", r"\frac{a}{c}", rf"\frac{{{m(a)}}}{{{m(c)}}}", x, "1")
-        out.step("Y", r"\frac{b}{c}", rf"\frac{{{m(b)}}}{{{m(c)}}}", y, "1")
-        f12 = opposed_rectangles(a, b, c)
-        log_term = 0.5 * np.log((1 + x * x) * (1 + y * y) / (1 + x * x + y * y))
-        out.step("L", r"\ln\sqrt{\frac{(1+X^{2})(1+Y^{2})}{1+X^{2}+Y^{2}}}",
-                 rf"\ln\sqrt{{\frac{{(1+{_number(out, x)}^{{2}})(1+{_number(out, y)}^{{2}})}}"
-                 rf"{{1+{_number(out, x)}^{{2}}+{_number(out, y)}^{{2}}}}}}", log_term, "1")
-        rx, ry = np.sqrt(1 + x * x), np.sqrt(1 + y * y)
-        arc_term = (x * ry * np.arctan(x / ry) + y * rx * np.arctan(y / rx)
-                    - x * np.arctan(x) - y * np.arctan(y))
-        out.step("S", r"X\sqrt{1+Y^{2}}\tan^{-1}\frac{X}{\sqrt{1+Y^{2}}}"
-                 r" + Y\sqrt{1+X^{2}}\tan^{-1}\frac{Y}{\sqrt{1+X^{2}}}"
-                 r" - X\tan^{-1}X - Y\tan^{-1}Y",
-                 rf"S\left(X = {_number(out, x)},\ Y = {_number(out, y)}\right)", arc_term, "1")
-        out.step("F_{12}", r"\frac{2\,(L + S)}{\pi X Y}",
-                 rf"\frac{{2\,({_number(out, log_term)} + {_number(out, arc_term)})}}"
-                 rf"{{\pi \cdot {_number(out, x)} \cdot {_number(out, y)}}}", f12, "1",
-                 label="Identical, parallel, directly opposed rectangles",
-                 source=f"{HOWELL}, case C-11")
-        area_1 = area_2 = a * b
-        f21 = f12
-        out.note("The rectangles are identical, so F21 = F12.", f"{INCROPERA}, Eq. 13.3")
+        a, b, c = (out.input(n) for n in ("width", "height", "separation"))
+        f12 = opposed_rectangles(inp.width, inp.height, inp.separation)
+        x = out.step("X", "a / c", {"a": a, "c": c}, inp.width / inp.separation,
+                     label="Width over separation", source=f"{HOWELL}, case C-11")
+        y = out.step("Y", "b / c", {"b": b, "c": c}, inp.height / inp.separation,
+                     label="Height over separation", source=f"{HOWELL}, case C-11")
+        f = _catalogue(out, "C-11", "identical, parallel, directly opposed rectangles",
+                       {"X": x, "Y": y}, f12)
+        area_1 = out.step("A_1", "a * b", {"a": a, "b": b}, inp.width * inp.height, "m^2",
+                          label="Area of rectangle 1", yields="area_1")
+        area_2 = out.step("A_2", "a * b", {"a": a, "b": b}, inp.width * inp.height, "m^2",
+                          label="Area of rectangle 2 (identical)", yields="area_2")
+        f21_equal = True
     elif geometry == "perpendicular_rectangles":
-        length, w1, w2 = inp.common_edge, inp.width_1, inp.width_2
-        w, h = w1 / length, w2 / length
-        out.step("W", r"\frac{w_{1}}{l}", rf"\frac{{{m(w1)}}}{{{m(length)}}}", w, "1")
-        out.step("H", r"\frac{w_{2}}{l}", rf"\frac{{{m(w2)}}}{{{m(length)}}}", h, "1")
-        f12 = perpendicular_rectangles(length, w1, w2)
-        root = np.sqrt(w * w + h * h)
-        arc_term = w * np.arctan(1 / w) + h * np.arctan(1 / h) - root * np.arctan(1 / root)
-        out.step("S", r"W\tan^{-1}\frac{1}{W} + H\tan^{-1}\frac{1}{H}"
-                 r" - \sqrt{H^{2}+W^{2}}\tan^{-1}\frac{1}{\sqrt{H^{2}+W^{2}}}",
-                 rf"S\left(W = {_number(out, w)},\ H = {_number(out, h)}\right)", arc_term, "1")
-        w2_, h2_, sum2 = w * w, h * h, w * w + h * h
-        log_term = 0.25 * (np.log((1 + w2_) * (1 + h2_) / (1 + sum2))
-                           + w2_ * np.log(w2_ * (1 + sum2) / ((1 + w2_) * sum2))
-                           + h2_ * np.log(h2_ * (1 + sum2) / ((1 + h2_) * sum2)))
-        out.step("L", r"\frac{1}{4}\ln\left[\frac{(1+W^{2})(1+H^{2})}{1+W^{2}+H^{2}}"
-                 r"\left(\frac{W^{2}(1+W^{2}+H^{2})}{(1+W^{2})(W^{2}+H^{2})}\right)^{W^{2}}"
-                 r"\left(\frac{H^{2}(1+H^{2}+W^{2})}{(1+H^{2})(H^{2}+W^{2})}\right)^{H^{2}}"
-                 r"\right]",
-                 rf"L\left(W = {_number(out, w)},\ H = {_number(out, h)}\right)", log_term, "1")
-        out.step("F_{12}", r"\frac{S + L}{\pi W}",
-                 rf"\frac{{{_number(out, arc_term)} + {_number(out, log_term)}}}"
-                 rf"{{\pi \cdot {_number(out, w)}}}", f12, "1",
-                 label="Perpendicular rectangles with a common edge, from surface 1 "
-                       "(width_1) to surface 2 (width_2)",
-                 source=f"{HOWELL}, case C-14")
-        area_1, area_2 = length * w1, length * w2
-        f21 = None
+        length, w1, w2 = (out.input(n) for n in ("common_edge", "width_1", "width_2"))
+        f12 = perpendicular_rectangles(inp.common_edge, inp.width_1, inp.width_2)
+        w = out.step("W", "w_1 / l", {"w_1": w1, "l": length}, inp.width_1 / inp.common_edge,
+                     label="Width of rectangle 1 over the common edge",
+                     source=f"{HOWELL}, case C-14")
+        h = out.step("H", "w_2 / l", {"w_2": w2, "l": length}, inp.width_2 / inp.common_edge,
+                     label="Width of rectangle 2 over the common edge",
+                     source=f"{HOWELL}, case C-14")
+        f = _catalogue(out, "C-14", "perpendicular rectangles with a common edge, from "
+                       "rectangle 1 (width_1) to rectangle 2 (width_2)", {"W": w, "H": h}, f12)
+        area_1 = out.step("A_1", "l * w_1", {"l": length, "w_1": w1},
+                          inp.common_edge * inp.width_1, "m^2", label="Area of rectangle 1",
+                          yields="area_1")
+        area_2 = out.step("A_2", "l * w_2", {"l": length, "w_2": w2},
+                          inp.common_edge * inp.width_2, "m^2", label="Area of rectangle 2",
+                          yields="area_2")
     elif geometry == "element_to_rectangle":
-        a, b, c = inp.width, inp.height, inp.separation
-        x0 = inp.element_x if inp.element_x is not None else a / 2.0
-        y0 = inp.element_y if inp.element_y is not None else b / 2.0
-        if inp.element_x is None or inp.element_y is None:
-            out.note("The element's foot point defaults to the centre of the rectangle "
-                     "where element_x or element_y is not given.")
-        parts = []
-        corners = ((a - x0, b - y0), (x0, b - y0), (a - x0, y0), (x0, y0))
-        for k, (u, v) in enumerate(corners, start=1):
-            part = (np.sign(u) * np.sign(v) * element_to_rectangle_corner(abs(u), abs(v), c)
-                    if u != 0.0 and v != 0.0 else 0.0)
-            parts.append(float(part))
-            sign = "-" if part < 0 else ""
-            out.step(rf"F_{{{k}}}",
-                     r"\frac{\operatorname{sgn}(uv)}{2\pi}\left["
-                     r"\frac{A}{\sqrt{1+A^{2}}}\tan^{-1}\frac{B}{\sqrt{1+A^{2}}} + "
-                     r"\frac{B}{\sqrt{1+B^{2}}}\tan^{-1}\frac{A}{\sqrt{1+B^{2}}}\right]",
-                     rf"{sign}F\left(A = {_number(out, abs(u) / c)},\ "
-                     rf"B = {_number(out, abs(v) / c)}\right)", float(part), "1",
-                     label=f"Corner rectangle {k} at the foot point, sides u = "
-                           f"{out.qt(u, 'm')}, v = {out.qt(v, 'm')} (A = |u|/c, B = |v|/c; "
-                           "negative where it reaches beyond the rectangle)",
-                     source=f"{HOWELL}, case B-3")
-        f12 = element_to_rectangle(a, b, c, x0, y0)
-        numbers = " + ".join(_number(out, p) if p >= 0 else rf"\left({_number(out, p)}\right)"
-                             for p in parts)
-        out.step("F_{d1-2}", r"F_{1} + F_{2} + F_{3} + F_{4}", numbers, f12, "1",
-                 label="Element to the rectangle, by superposition of the four corner "
-                       "rectangles", source=f"{INCROPERA}, §13.1.2 (superposition)")
-        area_1, area_2, f21 = None, a * b, None
-        out.note("The receiver is a small plane element parallel to the rectangle and facing "
-                 "it; its foot point is measured from the rectangle's lower-left corner and may "
-                 "lie outside the rectangle.", f"{HOWELL}, case B-3")
+        _element_to_rectangle(inp, out)
+        return
     else:
-        r1, r2, h = inp.radius_1, inp.radius_2, inp.separation
-        big_r1, big_r2 = r1 / h, r2 / h
-        x = 1.0 + (1.0 + big_r2**2) / big_r1**2
-        out.step("R_{1}", r"\frac{r_{1}}{h}", rf"\frac{{{m(r1)}}}{{{m(h)}}}", big_r1, "1")
-        out.step("R_{2}", r"\frac{r_{2}}{h}", rf"\frac{{{m(r2)}}}{{{m(h)}}}", big_r2, "1")
-        out.step("X", r"1 + \frac{1 + R_{2}^{2}}{R_{1}^{2}}",
-                 rf"1 + \frac{{1 + {_number(out, big_r2)}^{{2}}}}{{{_number(out, big_r1)}^{{2}}}}",
-                 x, "1")
-        f12 = coaxial_disks(r1, r2, h)
-        out.step("F_{12}", r"\frac{1}{2}\left[X - \sqrt{X^{2} - 4\left(\frac{R_{2}}{R_{1}}"
-                 r"\right)^{2}}\right]",
-                 rf"\frac{{1}}{{2}}\left[{_number(out, x)} - \sqrt{{{_number(out, x)}^{{2}} - "
-                 rf"4\left(\frac{{{_number(out, big_r2)}}}{{{_number(out, big_r1)}}}\right)"
-                 r"^{2}}\right]", f12, "1", label="Coaxial parallel disks, disk 1 to disk 2",
-                 source=f"{HOWELL}, case C-41")
-        area_1, area_2 = np.pi * r1**2, np.pi * r2**2
-        f21 = None
-    out.result("F12", f12)
-    if area_1 is not None:
-        if f21 is None:
-            f21 = reciprocal_view_factor(f12, area_1, area_2)
-            out.step("F_{21}", r"\frac{A_{1} F_{12}}{A_{2}}",
-                     rf"\frac{{{out.q(area_1, 'm^2')} \cdot {_number(out, f12)}}}"
-                     rf"{{{out.q(area_2, 'm^2')}}}", f21, "1", label="Reverse factor by "
-                     "reciprocity", source=f"{INCROPERA}, Eq. 13.3")
-        out.result("F21", f21)
-        out.result("area_1", area_1)
+        r1, r2, h = (out.input(n) for n in ("radius_1", "radius_2", "separation"))
+        f12 = coaxial_disks(inp.radius_1, inp.radius_2, inp.separation)
+        big_r1 = out.step("R_1", "r_1 / h", {"r_1": r1, "h": h}, inp.radius_1 / inp.separation,
+                          label="Radius of disk 1 over the separation",
+                          source=f"{HOWELL}, case C-41")
+        big_r2 = out.step("R_2", "r_2 / h", {"r_2": r2, "h": h}, inp.radius_2 / inp.separation,
+                          label="Radius of disk 2 over the separation",
+                          source=f"{HOWELL}, case C-41")
+        x = out.step("X", "1 + (1 + R_2 ** 2) / R_1 ** 2", {"R_1": big_r1, "R_2": big_r2},
+                     1.0 + (1.0 + big_r2.si ** 2) / big_r1.si ** 2,
+                     source=f"{HOWELL}, case C-41")
+        # The catalogue's (X − √(X² − 4(R₂/R₁)²))/2, multiplied out so that a small disk 2
+        # loses no digits to cancellation (the physics evaluates it so, too).
+        f = out.step("F_12", "2 * (R_2 / R_1) ** 2 / (X + sqrt(X ** 2 - 4 * (R_2 / R_1) ** 2))",
+                     {"R_1": big_r1, "R_2": big_r2, "X": x}, f12,
+                     label="Coaxial parallel disks, disk 1 to disk 2: the catalogue's "
+                           "½[X − √(X² − 4(R₂/R₁)²)] with the root rationalised",
+                     source=f"{HOWELL}, case C-41", yields="F12")
+        area_1 = out.step("A_1", "pi * r_1 ** 2", {"r_1": r1}, np.pi * inp.radius_1 ** 2,
+                          "m^2", label="Area of disk 1", yields="area_1")
+        area_2 = out.step("A_2", "pi * r_2 ** 2", {"r_2": r2}, np.pi * inp.radius_2 ** 2,
+                          "m^2", label="Area of disk 2", yields="area_2")
+    f21 = reciprocal_view_factor(f.si, area_1.si, area_2.si)
+    out.step("F_21", "A_1 * F_12 / A_2", {"A_1": area_1, "F_12": f, "A_2": area_2}, f21,
+             label="Reverse factor by reciprocity" + (" (identical rectangles: F₂₁ = F₁₂)"
+                                                       if f21_equal else ""),
+             source=f"{INCROPERA}, Eq. 13.3", yields="F21")
+    out.note("Diffuse surfaces; the factor is purely geometric.", HOWELL)
+
+
+_CORNERS = (("A_1", "B_1"), ("A_2", "B_1"), ("A_1", "B_2"), ("A_2", "B_2"))
+_SUBSCRIPT = {"A_1": "A₁", "A_2": "A₂", "B_1": "B₁", "B_2": "B₂"}
+_CORNER_NAMES = ("towards the right and top edges", "towards the left and top edges",
+                 "towards the right and bottom edges", "towards the left and bottom edges")
+
+
+def _element_to_rectangle(inp, out):
+    """A plane element facing a rectangle: the four corner rectangles of case B-3 that meet at
+    its foot point, each a statement, and their sum."""
+    a, b, c = (out.input(n) for n in ("width", "height", "separation"))
+    element_to_rectangle(inp.width, inp.height, inp.separation,
+                         inp.element_x if inp.element_x is not None else 0.0,
+                         inp.element_y if inp.element_y is not None else 0.0)  # range checks
+    source = f"{HOWELL}, case B-3"
+    if inp.element_x is not None:
+        x_e = out.input("element_x")
     else:
-        out.not_reached("F21", "surface 1 is a differential element (no finite area)")
-        out.not_reached("area_1", "surface 1 is a differential element (no finite area)")
-    out.result("area_2", area_2)
+        x_e = out.step("x_e", "a / 2", {"a": a}, inp.width / 2.0,
+                       "m", label="Foot point at mid-width (element_x not given)")
+    if inp.element_y is not None:
+        y_e = out.input("element_y")
+    else:
+        y_e = out.step("y_e", "b / 2", {"b": b}, inp.height / 2.0,
+                       "m", label="Foot point at mid-height (element_y not given)")
+    if inp.element_x is None or inp.element_y is None:
+        out.note("The element's foot point defaults to the centre of the rectangle "
+                 "where element_x or element_y is not given.")
+    ratios = {
+        "A_1": out.step("A_1", "(a - x_e) / c", {"a": a, "x_e": x_e, "c": c},
+                        (inp.width - x_e.si) / inp.separation,
+                        label="Distance from the foot point to the right edge over the "
+                              "separation (negative beyond it)", source=source),
+        "A_2": out.step("A_2", "x_e / c", {"x_e": x_e, "c": c}, x_e.si / inp.separation,
+                        label="Distance from the foot point to the left edge over the "
+                              "separation (negative beyond it)", source=source),
+        "B_1": out.step("B_1", "(b - y_e) / c", {"b": b, "y_e": y_e, "c": c},
+                        (inp.height - y_e.si) / inp.separation,
+                        label="Distance from the foot point to the top edge over the "
+                              "separation (negative beyond it)", source=source),
+        "B_2": out.step("B_2", "y_e / c", {"y_e": y_e, "c": c}, y_e.si / inp.separation,
+                        label="Distance from the foot point to the bottom edge over the "
+                              "separation (negative beyond it)", source=source),
+    }
+    parts = {}
+    for k, (name_a, name_b) in enumerate(_CORNERS, start=1):
+        ratio_a, ratio_b = ratios[name_a].si, ratios[name_b].si
+        values = {"A": Value(abs(ratio_a)), "B": Value(abs(ratio_b))}
+        if ratio_a == 0.0 or ratio_b == 0.0:
+            part = 0.0
+            text = ("The corner rectangle has no area (the foot point is on an edge): it adds "
+                    "nothing")
+            values = {}
+        else:
+            sign = 1.0 if ratio_a * ratio_b > 0 else -1.0
+            part = sign * float(element_to_rectangle_corner(abs(ratio_a), abs(ratio_b), 1.0))
+            text = ("Howell's catalogue case B-3 (plane element under a corner of a parallel "
+                    f"rectangle) at A = |{_SUBSCRIPT[name_a]}| = {{A}} and "
+                    f"B = |{_SUBSCRIPT[name_b]}| = {{B}}")
+            if sign < 0:
+                text += ", taken negative: this corner rectangle reaches beyond the rectangle"
+        parts[f"F_{k}"] = out.statement(f"F_{k}", text, part, "1", values=values,
+                                        label=f"Corner rectangle {_CORNER_NAMES[k - 1]}",
+                                        source=source)
+        _in_group(out, "Corner rectangles at the foot point", f"{name_a}, {name_b}")
+    f12 = sum(p.si for p in parts.values())
+    out.step("F_12", "F_1 + F_2 + F_3 + F_4", parts, f12,
+             label="Element to the rectangle, by superposition of the four corner rectangles",
+             source=f"{INCROPERA}, §13.1.2 (superposition)", yields="F12")
+    out.step("A_2", "a * b", {"a": a, "b": b}, inp.width * inp.height, "m^2",
+             label="Area of the rectangle", yields="area_2")
+    why = "surface 1 is a differential element (no finite area)"
+    out.not_reached("F21", why)
+    out.not_reached("area_1", why)
+    out.note("The receiver is a small plane element parallel to the rectangle and facing "
+             "it; its foot point is measured from the rectangle's lower-left corner and may "
+             "lie outside the rectangle.", source)
     out.note("Diffuse surfaces; the factor is purely geometric.", HOWELL)
 
 
@@ -507,7 +593,7 @@ _EMITTER_FIELDS = (
     _emissivity("emissivity", "emissivity, with temperature only (omitted: 1, a black "
                 "opening)", default=None),
     Quantity("emissive_power", "emissive power of the rectangle, instead of temperature and "
-             "emissivity", default=None, unit=W_M2, greater_than=0.0, display="kW/m^2"),
+             "emissivity", default=None, unit=W_M2, greater_than=0.0, display=KW_M2),
 )
 
 _RECEIVER_FIELDS = (
@@ -518,16 +604,10 @@ _RECEIVER_FIELDS = (
 _EXPOSURE_CAUTION = (SAFETY + " Separation and boundary-distance decisions belong to the local "
                      "code and a licensed engineer: this incident flux is one input to them, "
                      "not the decision.")
-_PHYSICS_EMITTER = re.compile(r"^emitters\[(\d+)\](.*)$")
-_PHYSICS_NAME = re.compile(r"emitters\[(\d+)\]")
 
-
-def _emitter_path(quantity: str) -> str:
-    """The physics names emitters from 1; the sheet's input paths count from 0."""
-    match = _PHYSICS_EMITTER.match(quantity)
-    if not match:
-        return quantity
-    return f"emitters[{int(match.group(1)) - 1}]{match.group(2) or '.x'}"
+_SEARCH = ("a grid over the openings' extent (plus {margin} of it), then a bounded optimiser "
+           "(L-BFGS-B) from the best grid peaks")
+_SEARCH_MARGIN = 0.05  # of the openings' extent, each side: the physics' own default
 
 
 @functools.lru_cache(maxsize=64)
@@ -539,95 +619,122 @@ def _minimum_separation(emitters: tuple[Emitter, ...], limit: float,
 
 
 def _radiant_exposure(inp, out):
-    emitters, names = [], []
+    emitters, names, powers = [], [], []
+    group_e = "Emissive power of each emitter"
     for k, item in enumerate(inp.emitters):
-        name = item["name"] or f"emitter {k + 1}"
+        n = k + 1
+        name = item["name"] or f"emitter {n}"
         names.append(name)
-        symbol = rf"E_{{{k + 1}}}"
         if item["temperature"] is not None:
-            eps = item["emissivity"] if item["emissivity"] is not None else 1.0
-            power = emissive_power(item["temperature"], eps)
-            out.step(symbol, r"\varepsilon \sigma T^{4}",
-                     rf"{_number(out, eps)} \cdot {_sigma()} \cdot "
-                     rf"\left({_kelvin(out, item['temperature'])}\right)^{{4}}",
-                     power, W_M2, display_unit="kW/m^2",
-                     label=f"Emissive power of {name}"
-                           + (" (emissivity 1, a black opening)" if item["emissivity"] is None
-                              else ""), source=STEFAN_BOLTZMANN_LAW)
+            if item["emissivity"] is not None:
+                eps = out.input(f"emitters[{k}].emissivity")
+                label = f"Emissive power of {name}"
+            else:
+                eps = Value(1.0, "1", given=True)
+                label = f"Emissive power of {name} (no emissivity given: a black opening)"
+            power = out.step(f"E_{n}", f"varepsilon_{n} * sigma * T_{n} ** 4",
+                             {f"varepsilon_{n}": eps, f"T_{n}": out.input(
+                                 f"emitters[{k}].temperature")},
+                             emissive_power(item["temperature"], eps.si), W_M2,
+                             display=KW_M2, label=label, source=STEFAN_BOLTZMANN_LAW,
+                             group=group_e, item=name)
         else:
-            power = item["emissive_power"]
-        emitters.append(Emitter(item["x"], item["y"], item["width"], item["height"], power))
+            power = out.input(f"emitters[{k}].emissive_power")
+        powers.append(power)
+        emitters.append(Emitter(item["x"], item["y"], item["width"], item["height"],
+                                power.si))
     s = inp.separation
-    try:
-        incident_flux(emitters, s, 0.0, 0.0)  # checks the emitters (sizes, overlaps)
-    except PhysicsRangeError as exc:
-        value = _PHYSICS_NAME.sub(lambda m: f"emitters[{int(m.group(1)) - 1}]", str(exc.value))
-        raise PhysicsRangeError(_emitter_path(exc.quantity), value, exc.expected) from None
+    incident_flux(emitters, s, 0.0, 0.0)  # checks the emitters (sizes, overlaps) first
 
+    receiver = None
     if inp.receiver is not None:
-        px, py = inp.receiver["x"], inp.receiver["y"]
-        q = incident_flux(emitters, s, px, py)
-        where = "the given receiver point"
+        receiver = (inp.receiver["x"], inp.receiver["y"])
+        incident_flux(emitters, s, *receiver)  # checks the point
+        px = out.step("x_worst", "x_r", {"x_r": out.input("receiver.x")}, receiver[0], "m",
+                      label="The receiver point as given", yields="x_worst")
+        py = out.step("y_worst", "y_r", {"y_r": out.input("receiver.y")}, receiver[1], "m",
+                      label="The receiver point as given", yields="y_worst")
+        where = "the receiver point"
     else:
-        found = worst_point(emitters, s)
-        px, py, q = found.x, found.y, found.q
+        found = worst_point(emitters, s, margin=_SEARCH_MARGIN)
+        values = {"s": out.input("separation"),
+                  "margin": Value(_SEARCH_MARGIN, "1", "%", given=True)}
+        px = out.statement("x_worst", "Global search of the receiving plane at separation {s}: "
+                           + _SEARCH, found.x, "m", values=values,
+                           label="Worst point of the receiving plane, x",
+                           source=SEARCH_METHOD, yields="x_worst")
+        py = out.statement("y_worst", "The same search: y of the point of highest incident "
+                           "flux", found.y, "m", label="Worst point of the receiving plane, y",
+                           source=SEARCH_METHOD, yields="y_worst")
         where = "the worst point"
-        out.note("Worst point found by a global search of the receiving plane: a grid over the "
-                 "emitters' extent (plus 5 %), then a bounded optimiser (L-BFGS-B) from the "
-                 "best grid peaks. The worst point of several openings need not face any of "
-                 "them.", "scipy.optimize.minimize (L-BFGS-B)")
+        out.note("The worst point of several openings need not face any of them: between two "
+                 "openings both contribute.", SEARCH_METHOD)
 
-    m = lambda v: out.q(v, "m")  # noqa: E731 - a short local formatter
-    terms_symbolic, terms_numbers = [], []
-    for k, (emitter, name) in enumerate(zip(emitters, names), start=1):
-        factor = element_to_rectangle(emitter.width, emitter.height, s, px - emitter.x,
-                                      py - emitter.y)
-        out.step(rf"F_{{{k}}}",
-                 r"F_{\mathrm{B3}}\left(w_{i}, h_{i}, s;\ x - x_{i},\ y - y_{i}\right)",
-                 rf"F\left({m(emitter.width)},\ {m(emitter.height)},\ {m(s)};\ "
-                 rf"{m(px - emitter.x)},\ {m(py - emitter.y)}\right)", factor, "1",
-                 label=f"View factor from {where} to {name}",
-                 source=f"{HOWELL}, case B-3 (superposition of corner rectangles)")
-        terms_symbolic.append(rf"E_{{{k}}} F_{{{k}}}")
-        terms_numbers.append(rf"{out.q(emitter.emissive_power, W_M2, 'kW/m^2')} \cdot "
-                             rf"{_number(out, factor)}")
-    out.step("q", " + ".join(terms_symbolic), " + ".join(terms_numbers), q, W_M2,
-             display_unit="kW/m^2", label=f"Incident flux at {where}")
-    out.result("q", q)
-    out.result("x_worst", px)
-    out.result("y_worst", py)
+    factors = []
+    for k, (emitter, name) in enumerate(zip(emitters, names)):
+        n = k + 1
+        dx, dy = px.si - emitter.x, py.si - emitter.y
+        factor = element_to_rectangle(emitter.width, emitter.height, s, dx, dy)
+        factors.append(out.statement(
+            f"F_{n}", "Howell's catalogue case B-3 by superposition of the four corner "
+            "rectangles that meet at the foot point: {name}, {w} wide and {h} high, at "
+            "separation {s}; foot point {dx} across and {dy} up from its lower-left corner",
+            factor, "1",
+            values={"name": Value(name), "w": out.input(f"emitters[{k}].width"),
+                    "h": out.input(f"emitters[{k}].height"), "s": out.input("separation"),
+                    "dx": Value(dx, "m"), "dy": Value(dy, "m")},
+            label=f"View factor from {where} to {name}",
+            source=f"{HOWELL}, case B-3"))
+        _in_group(out, "View factor to each emitter", name)
+    q = sum(p.si * f.si for p, f in zip(powers, factors))
+    expr = " + ".join(f"E_{n} * F_{n}" for n in range(1, len(emitters) + 1))
+    operands = {}
+    for n, (p, f) in enumerate(zip(powers, factors), start=1):
+        operands[f"E_{n}"], operands[f"F_{n}"] = p, f
+    # One line of working while it fits the formula language's limits; a statement beyond that.
+    if _fits(expr):
+        q_value = out.step("q", expr, operands, q, W_M2, label=f"Incident flux at {where}",
+                           yields="q")
+    else:
+        q_value = out.statement("q", "Sum of E_i F_i over the {n} emitters", q, W_M2,
+                                values={"n": Value(len(emitters), given=True)},
+                                label=f"Incident flux at {where}", yields="q")
 
     limit = inp.limit
     minimum = None
     if limit is not None:
-        out.step("U", r"\frac{q}{q_{\mathrm{limit}}}",
-                 rf"\frac{{{out.q(q, W_M2, 'kW/m^2')}}}{{{out.q(limit, W_M2, 'kW/m^2')}}}",
-                 q / limit, "1", label="Utilisation of the limit flux")
-        out.result("utilisation", q / limit)
-        receiver = None if inp.receiver is None else (px, py)
+        q_limit = out.input("limit")
+        out.step("U", "q / q_lim", {"q": q_value, "q_lim": q_limit}, q / limit,
+                 label="Utilisation of the limit flux", yields="utilisation")
         minimum = _minimum_separation(tuple(emitters), float(limit), receiver)
-        out.step(r"s_{\min}",
-                 r"\min\left\{s_{0} : q(s) \le q_{\mathrm{limit}}\ \forall s \ge s_{0}\right\}",
-                 rf"\min\left\{{s_{{0}} : q(s) \le {out.q(limit, W_M2, 'kW/m^2')}\ "
-                 rf"\forall s \ge s_{{0}}\right\}}", minimum.separation, "m",
-                 label=f"Minimum separation for {where}",
-                 source="Brent's method (scipy.optimize.brentq) on a bracketing scan")
-        out.result("minimum_separation", minimum.separation)
         if minimum.met_at_contact:
-            out.note(f"Minimum separation 0 m: the limit {out.qt(limit, W_M2, 'kW/m^2')} is met "
-                     "at every separation, even at contact "
-                     + ("(no emitter's emissive power exceeds it)." if receiver is None else
-                        f"(the highest flux at the point is {out.qt(minimum.q, W_M2, 'kW/m^2')})."
-                        ))
+            if receiver is None:
+                text = ("No emitter's emissive power exceeds the limit {limit}, so no point of "
+                        "the receiving plane can, at any separation")
+                values = {"limit": q_limit}
+            else:
+                text = ("The flux at the given point never exceeds the limit {limit}: its "
+                        "highest value at any separation is {q}")
+                values = {"limit": q_limit, "q": Value(minimum.q, W_M2, KW_M2)}
+            out.statement("s_min", text, 0.0, "m", values=values,
+                          label=f"Minimum separation for {where}: the limit is met at every "
+                                "separation, even at contact", yields="minimum_separation")
+            out.note("Minimum separation {s_min}: the limit {limit} is met at every "
+                     "separation, even at contact.", s_min=Value(0.0, "m"), limit=q_limit)
         else:
-            out.step(r"q(s_{\min})", r"\sum_{i} E_{i} F_{i}\left(s_{\min}\right)", "",
-                     minimum.q, W_M2, display_unit="kW/m^2",
-                     label=f"Check: incident flux at {where} at the minimum separation "
-                           f"(x = {out.qt(minimum.x, 'm')}, y = {out.qt(minimum.y, 'm')})")
+            out.statement("s_min", "Smallest separation beyond which the incident flux at "
+                          + where + " never exceeds the limit {limit}: a geometric scan of "
+                          "separations brackets the last crossing, Brent's method solves it; "
+                          "there the flux is {q} at x = {x}, y = {y}", minimum.separation, "m",
+                          values={"limit": q_limit, "q": Value(minimum.q, W_M2, KW_M2),
+                                  "x": Value(minimum.x, "m"), "y": Value(minimum.y, "m")},
+                          label=f"Minimum separation for {where}",
+                          source=BRENT,
+                          yields="minimum_separation")
             out.note("The minimum separation is the separation beyond which the flux never "
                      "exceeds the limit: the last crossing on a geometric scan of separations "
                      "is bracketed and then solved by Brent's method, not by stepping.",
-                     "scipy.optimize.brentq")
+                     BRENT)
     else:
         out.not_reached("utilisation", "no limit given")
         out.not_reached("minimum_separation", "no limit given")
@@ -635,97 +742,77 @@ def _radiant_exposure(inp, out):
              "receiver is a small surface parallel to the emitting face and facing it; no "
              "absorption by the air, no flame projecting beyond the openings and no shielding "
              "are taken into account.", f"{HOWELL}, case B-3")
+    out.figure(_plan_figure(out, emitters, names, px.si, py.si, receiver is None))
+    out.figure(_flux_figure(out, emitters, s, q, limit, minimum, receiver, where))
 
-    # Figure data (plain numbers): the flux against separation around the design separation,
-    # closer together near the emitters, where the flux bends most.
+
+def _plan_figure(out, emitters, names, px, py, worst: bool) -> FigureData:
+    """The emitting face to scale: the openings as boxes, the worst (or given) point marked.
+
+    The point's words sit in the plot's top-right corner (the view's rule for a point), so the
+    plot reaches above the openings by a free band at least as tall as those words."""
+    x0 = min([e.x for e in emitters] + [px])
+    x1 = max([e.x + e.width for e in emitters] + [px])
+    y0 = min([e.y for e in emitters] + [py])
+    y1 = max([e.y + e.height for e in emitters] + [py])
+    pad = 0.08 * max(x1 - x0, y1 - y0)
+    width_mm = 160.0
+    plot_width_mm = width_mm - 28.0  # the y axis' numbers and words take the rest
+    data_width = x1 - x0 + 2.0 * pad
+    band = 0.0
+    for _ in range(3):  # the band's height in metres depends on the scale it sets
+        data_height = y1 - y0 + 2.0 * pad + band
+        height_mm = float(np.clip(plot_width_mm * data_height / data_width + 24.0, 55.0, 120.0))
+        scale = min(plot_width_mm / data_width, (height_mm - 24.0) / data_height)  # mm per m
+        band = 9.0 / scale  # words of 7 pt with their frame: about 5 mm, and a margin
+    label = "worst point" if worst else "receiver point"
+    return FigureData(
+        key=f"{out.block_key}-elevation",
+        caption=phrase("Elevation of the emitting face to scale, with the emitters named and "
+                       f"the {label} marked at x = {{x}}, y = {{y}}.", x=Value(px, "m"),
+                       y=Value(py, "m")),
+        x=Axis("x along the emitting face", "m", "m", (x0 - pad, x1 + pad)),
+        y=Axis("y", "m", "m", (y0 - pad, y1 + pad + band)),
+        boxes=tuple(Box(e.x, e.y, e.x + e.width, e.y + e.height, name, shade=4)
+                    for e, name in zip(emitters, names)),
+        points=(Point(px, py, label),),
+        legend=None, equal_aspect=True, size=(width_mm, height_mm))
+
+
+def _flux_figure(out, emitters, s, q, limit, minimum, receiver, where) -> FigureData:
+    """Incident flux at the worst (or given) point against separation, with the design
+    separation, the limit and the minimum separation marked."""
+    # Closer together near the emitters, where the flux bends most.
     reach = max(2.0 * s, 1.4 * minimum.separation if minimum is not None else 0.0)
     separations = np.geomspace(reach / 30.0, reach, 30)
-    receiver = None if inp.receiver is None else (px, py)
-    out.figure_data["exposure"] = {
-        "emitters": [(name, e.x, e.y, e.width, e.height, e.emissive_power)
-                     for name, e in zip(names, emitters)],
-        "point": (px, py), "worst": inp.receiver is None, "separation": s, "q": q,
-        "limit": limit,
-        "minimum_separation": None if minimum is None else minimum.separation,
-        "separations": separations.tolist(),
-        "flux": flux_against_separation(emitters, separations, receiver).tolist(),
-    }
-
-
-def _exposure_figures(block) -> list[Figure]:
-    from matplotlib.patches import Rectangle
-
-    from calcdoc.render.plots import (COLOURS, HATCHES, figure, mark_horizontal, mark_vertical,
-                                      svg_of, thin)
-
-    data = block.output.figure_data.get("exposure")
-    if not data:
-        return []
-    sig = block.output.precision
-    figures = []
-    x_all = [e[1] for e in data["emitters"]] + [e[1] + e[3] for e in data["emitters"]]
-    y_all = [e[2] for e in data["emitters"]] + [e[2] + e[4] for e in data["emitters"]]
-    px, py = data["point"]
-    x0, x1 = min(x_all + [px]), max(x_all + [px])
-    y0, y1 = min(y_all + [py]), max(y_all + [py])
-    pad = 0.08 * max(x1 - x0, y1 - y0)
-    aspect = (y1 - y0 + 2 * pad) / (x1 - x0 + 2 * pad)
-    height_mm = float(np.clip(140.0 * aspect + 22.0, 55.0, 120.0))
-    with figure(block.key + "-elevation", 160, height_mm) as (fig, ax):
-        for k, (name, x, y, w, h, _power) in enumerate(data["emitters"]):
-            ax.add_patch(Rectangle((x, y), w, h, facecolor="#f6e0d3", edgecolor="#000000",
-                                   hatch=HATCHES[k % len(HATCHES)], linewidth=0.9))
-            ax.text(x + w / 2, y + h / 2, name, ha="center", va="center", fontsize=7.5,
-                    bbox={"facecolor": "white", "edgecolor": "none", "pad": 1.0})
-        label = "worst point" if data["worst"] else "receiver point"
-        ax.plot([px], [py], marker="X", markersize=9, color=COLOURS[1], linestyle="none",
-                markeredgecolor="#000000", label=label)
-        ax.annotate(f"{label} ({format_quantity(px, 'm', 'm', sig)}, "
-                    f"{format_quantity(py, 'm', 'm', sig)})", xy=(px, py), xytext=(7, 7),
-                    textcoords="offset points", fontsize=7.5,
-                    bbox={"facecolor": "white", "edgecolor": "#000000", "linewidth": 0.5,
-                          "pad": 1.5})
-        ax.set_xlim(x0 - pad, x1 + pad)
-        ax.set_ylim(y0 - pad, y1 + pad)
-        ax.set_aspect("equal")
-        ax.set_xlabel("x along the emitting face (m)")
-        ax.set_ylabel("y (m)")
-        svg = svg_of(fig)
-    figures.append(Figure(block.key + "-elevation", svg,
-                          f"Elevation of the emitting face to scale, with the emitters named and "
-                          f"the {label} at separation "
-                          f"{format_quantity(data['separation'], 'm', 'm', sig)} marked."))
-
-    separations = np.array(data["separations"])
-    flux = np.array(data["flux"]) / 1000.0
-    with figure(block.key + "-flux", 160, 80) as (fig, ax):
-        ax.plot(*thin(separations, flux), color=COLOURS[0], linestyle="-",
-                label=f"incident flux at the {'worst point' if data['worst'] else 'receiver'}")
-        ax.plot([data["separation"]], [data["q"] / 1000.0], marker="o", color=COLOURS[0],
-                linestyle="none", label="design separation")
-        if data["limit"] is not None:
-            mark_horizontal(ax, data["limit"] / 1000.0,
-                            f"limit {format_quantity(data['limit'], W_M2, 'kW/m^2', sig)}")
-        if data["minimum_separation"]:
-            mark_vertical(ax, data["minimum_separation"], "minimum separation "
-                          f"{format_quantity(data['minimum_separation'], 'm', 'm', sig)}")
-        ax.set_xlim(0.0, float(separations[-1]))
-        ax.set_ylim(0.0, 1.08 * max(float(flux.max()),
-                                    (data["limit"] or 0.0) / 1000.0))
-        ax.set_xlabel("separation between the emitting face and the receiving plane (m)")
-        ax.set_ylabel("incident flux (kW/m²)")
-        ax.legend(loc="center right")
-        svg = svg_of(fig)
-    if data["limit"] is None:
-        caption = "Incident flux against separation, with the design separation marked."
-    elif data["minimum_separation"]:
-        caption = ("Incident flux against separation, with the design separation, the limit and "
-                   "the minimum separation marked.")
+    flux = flux_against_separation(emitters, separations, receiver)
+    marks = []
+    if limit is not None:
+        marks.append(Mark("y", limit, "limit", style=1))
+    if minimum is not None and minimum.separation > 0.0:
+        marks.append(Mark("x", minimum.separation, "minimum separation", style=3))
+    top = 1.08 * max(float(flux.max()), q, limit or 0.0)
+    values = {"s": out.input("separation")}
+    text = "Incident flux at " + where + " against separation, with the design separation {s}"
+    if limit is None:
+        text += " marked."
+    elif minimum.separation > 0.0:
+        text += ", the limit {limit} and the minimum separation {s_min} marked."
+        values.update(limit=out.input("limit"), s_min=Value(minimum.separation, "m"))
     else:
-        caption = ("Incident flux against separation, with the design separation and the limit "
-                   "marked; the limit is met at every separation (minimum separation 0 m).")
-    figures.append(Figure(block.key + "-flux", svg, caption))
-    return figures
+        text += (" and the limit {limit} marked; the limit is met at every separation (minimum "
+                 "separation {s_min}).")
+        values.update(limit=out.input("limit"), s_min=Value(0.0, "m"))
+    return FigureData(
+        key=f"{out.block_key}-flux",
+        caption=phrase(text, **values),
+        x=Axis("separation between the emitting face and the receiving plane", "m", "m",
+               (0.0, float(separations[-1]))),
+        y=Axis("incident flux", W_M2, KW_M2, (0.0, top)),
+        lines=(Line(tuple(separations.tolist()), tuple(flux.tolist()),
+                    f"incident flux at {where}"),
+               Line((s,), (q,), "design separation", style=0, marker=True)),
+        marks=tuple(marks), legend="center right")
 
 
 RADIANT_EXPOSURE = Kind(
@@ -744,11 +831,11 @@ RADIANT_EXPOSURE = Kind(
         Record("receiver", "one receiver point {x, y} in the emitting plane's axes (omitted: "
                "the worst point of the receiving plane)", default=None, fields=_RECEIVER_FIELDS),
         Quantity("limit", "incident flux limit, e.g. {named: wood_piloted_ignition_flux}",
-                 default=None, unit=W_M2, greater_than=0.0, display="kW/m^2"),
+                 default=None, unit=W_M2, greater_than=0.0, display=KW_M2),
     ),
     results=(
         ResultSpec("q", W_M2, "incident flux at the receiver point (the worst point or the "
-                   "given point)", display="kW/m^2"),
+                   "given point)", display=KW_M2),
         ResultSpec("x_worst", "m", "x of the worst point, or of the given point"),
         ResultSpec("y_worst", "m", "y of the worst point, or of the given point"),
         ResultSpec("utilisation", "1", "q / limit"),
@@ -756,9 +843,15 @@ RADIANT_EXPOSURE = Kind(
                    "the given point) meets the limit; 0 when met even at contact"),
     ),
     compute=_radiant_exposure,
-    figures=_exposure_figures,
     caution=_EXPOSURE_CAUTION,
     references=(HOWELL, STEFAN_BOLTZMANN_LAW),
+    input_names={"emitters": "emitters[{index}].x",
+                 "emitters.x": "emitters[{index}].x",
+                 "emitters.y": "emitters[{index}].y",
+                 "emitters.width": "emitters[{index}].width",
+                 "emitters.height": "emitters[{index}].height",
+                 "emitters.emissive_power": "emitters[{index}].emissive_power",
+                 "x": "receiver.x", "y": "receiver.y"},
 )
 
 KINDS = (SURFACE_EMISSION, RADIATION_EXCHANGE, VIEW_FACTOR, RADIANT_EXPOSURE)

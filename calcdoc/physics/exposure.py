@@ -91,17 +91,18 @@ def _emitters(emitters: Sequence[Emitter]) -> _Emitters:
     if len(emitters) == 0:
         raise PhysicsRangeError("emitters", 0, "at least one emitting rectangle")
     rows = []
-    for number, emitter in enumerate(emitters, start=1):
+    for index, emitter in enumerate(emitters):
         x, y, width, height, power = (float(v) for v in emitter)
         for name, value in (("x", x), ("y", y)):
             if not math.isfinite(value):
-                raise PhysicsRangeError(f"emitters[{number}].{name}", value, "a finite coordinate")
+                raise PhysicsRangeError(f"emitters.{name}", value, "a finite coordinate",
+                                        index=index)
         for name, value in (("width", width), ("height", height)):
             if not (math.isfinite(value) and value > 0.0):
-                raise PhysicsRangeError(f"emitters[{number}].{name}", value, "a length > 0 m")
+                raise PhysicsRangeError(f"emitters.{name}", value, "a length > 0 m", index=index)
         if not (math.isfinite(power) and power > 0.0):
-            raise PhysicsRangeError(f"emitters[{number}].emissive_power", power,
-                                    "an emissive power > 0 W/m^2")
+            raise PhysicsRangeError("emitters.emissive_power", power,
+                                    "an emissive power > 0 W/m^2", index=index)
         rows.append((x, y, width, height, power))
     array = np.array(rows)
     packed = _Emitters(*(array[:, k].copy() for k in range(5)))
@@ -114,8 +115,8 @@ def _emitters(emitters: Sequence[Emitter]) -> _Emitters:
             overlap_y = (min(rows[i][1] + rows[i][3], rows[j][1] + rows[j][3])
                          - max(rows[i][1], rows[j][1]))
             if overlap_x > tolerance and overlap_y > tolerance:
-                raise PhysicsRangeError(f"emitters[{j + 1}]", f"overlaps emitters[{i + 1}]",
-                                        "emitting rectangles that do not overlap")
+                raise PhysicsRangeError("emitters", f"overlaps emitters[{i}]",
+                                        "emitting rectangles that do not overlap", index=j)
     return packed
 
 
@@ -212,7 +213,9 @@ def incident_flux(emitters: Sequence[Emitter], separation: float, x: ArrayLike,
     emitters : sequence of Emitter
         The emitting rectangles (corner *x*\ :sub:`i`, *y*\ :sub:`i`, width *w*\ :sub:`i`,
         height *h*\ :sub:`i` [m], emissive power *E*\ :sub:`i` [W/m²]); at least one, not
-        overlapping.
+        overlapping. A bad emitter is named ``emitters.width`` (``.x``, ``.y``, ``.height``,
+        ``.emissive_power``), or ``emitters`` when it overlaps another, with ``index`` its
+        position in the list (from 0).
     separation : float
         Distance *s* between the emitting and receiving planes [m], > 0.
     x, y : float or array
@@ -248,7 +251,7 @@ def incident_flux(emitters: Sequence[Emitter], separation: float, x: ArrayLike,
     ya = np.asarray(y, dtype=float)
     for name, value in (("x", xa), ("y", ya)):
         if not np.all(np.isfinite(value)):
-            raise PhysicsRangeError(f"receiver.{name}", value, "a finite coordinate")
+            raise PhysicsRangeError(name, value, "a finite coordinate")
     q = _flux(packed, s, xa, ya)
     return float(q) if q.ndim == 0 else q
 
@@ -357,9 +360,9 @@ def _receiver(receiver: tuple[float, float] | None) -> tuple[float, float] | Non
     if receiver is None:
         return None
     x, y = (float(v) for v in receiver)
-    for name, value in (("x", x), ("y", y)):
+    for index, value in enumerate((x, y)):
         if not math.isfinite(value):
-            raise PhysicsRangeError(f"receiver.{name}", value, "a finite coordinate")
+            raise PhysicsRangeError("receiver", value, "a finite coordinate", index=index)
     return x, y
 
 

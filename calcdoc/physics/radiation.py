@@ -43,13 +43,15 @@ class ExchangeResult(NamedTuple):
     """Temperature of each shield, ordered from surface 1 [K]; empty without shields."""
 
 
-def _array(quantity: str, value: ArrayLike, ok: np.ndarray | None, expected: str) -> np.ndarray:
-    """Raise PhysicsRangeError naming the first element where ``ok`` is false."""
+def _array(quantity: str, value: ArrayLike, ok: np.ndarray | None, expected: str,
+           index: int | None = None) -> np.ndarray:
+    """Raise PhysicsRangeError naming the first element where ``ok`` is false; ``index`` is the
+    element of a list argument the value belongs to (a shield)."""
     array = np.asarray(value, dtype=float)
     good = np.isfinite(array) if ok is None else (np.isfinite(array) & ok)
     if not np.all(good):
         bad = array[~good].flat[0] if array.ndim else array
-        raise PhysicsRangeError(quantity, float(bad), expected)
+        raise PhysicsRangeError(quantity, float(bad), expected, index=index)
     return array
 
 
@@ -58,9 +60,10 @@ def _temperature(quantity: str, value: ArrayLike) -> np.ndarray:
     return _array(quantity, array, array > 0.0, "an absolute temperature > 0 K")
 
 
-def _emissivity(quantity: str, value: ArrayLike) -> np.ndarray:
+def _emissivity(quantity: str, value: ArrayLike, index: int | None = None) -> np.ndarray:
     array = np.asarray(value, dtype=float)
-    return _array(quantity, array, (array > 0.0) & (array <= 1.0), "0 < emissivity <= 1")
+    return _array(quantity, array, (array > 0.0) & (array <= 1.0), "0 < emissivity <= 1",
+                  index)
 
 
 def _area(quantity: str, value: float) -> float:
@@ -186,7 +189,9 @@ def parallel_plates_exchange(temperature_1: float, temperature_2: float, emissiv
         Emissivity of plate 2 [1], 0 < ε <= 1.
     shields : sequence of (float, float)
         One ``(emissivity_1, emissivity_2)`` pair per shield [1], ordered from plate 1 to plate 2;
-        a shield's ``emissivity_1`` is its face towards plate 1. Default: no shield.
+        a shield's ``emissivity_1`` is its face towards plate 1. Default: no shield. A bad
+        shield is named ``shields`` (a pair of the wrong length) or ``shields.emissivity_1`` /
+        ``shields.emissivity_2``, with ``index`` its position in the list (from 0).
 
     Returns
     -------
@@ -220,12 +225,12 @@ def parallel_plates_exchange(temperature_1: float, temperature_2: float, emissiv
     t1 = float(_temperature("temperature_1", temperature_1))
     t2 = float(_temperature("temperature_2", temperature_2))
     faces = [float(_emissivity("emissivity_1", emissivity_1))]
-    for number, shield in enumerate(shields, start=1):
+    for index, shield in enumerate(shields):
         if len(shield) != 2:
-            raise PhysicsRangeError(f"shields[{number}]", shield,
-                                    "a pair (emissivity_1, emissivity_2)")
-        faces.append(float(_emissivity(f"shields[{number}].emissivity_1", shield[0])))
-        faces.append(float(_emissivity(f"shields[{number}].emissivity_2", shield[1])))
+            raise PhysicsRangeError("shields", shield, "a pair (emissivity_1, emissivity_2)",
+                                    index=index)
+        faces.append(float(_emissivity("shields.emissivity_1", shield[0], index)))
+        faces.append(float(_emissivity("shields.emissivity_2", shield[1], index)))
     faces.append(float(_emissivity("emissivity_2", emissivity_2)))
     # faces: plate 1, shield 1 face 1, shield 1 face 2, ..., plate 2; gap k joins faces 2k, 2k+1.
     gaps = [_gap_resistance(faces[2 * k], faces[2 * k + 1]) for k in range(len(faces) // 2)]
