@@ -148,7 +148,8 @@ def test_fire_curve_parametric__end_before_the_peak(evaluate):
     assert results["theta_max"].value == results["theta_end"].value
     assert results["t_max"].value == 30 * MIN
     steps = steps_of(block)
-    assert steps["theta_g"].yields == "theta_end" and steps["theta_max"].expr is None
+    assert steps["theta_g"].yields == "theta_end" and steps["theta_g_max"].yields == "theta_max"
+    assert steps["theta_g_max"].expr is None and steps["theta_max"].yields is None
     assert redo_all(block) == []
 
 
@@ -568,3 +569,22 @@ def test_demo_fire_sheets__every_printed_step_redoes_from_its_printed_numbers(ev
         printed = block.printed_steps(sig)
         assert any("expr" in p.record() for p in printed), block.key
         assert redo_all(block, sig) == []
+
+
+def test_fire_curve__stray_free_text_refused_at_the_curve(errors_of):
+    errors = errors_of(fire_sheet("      curve: standard\n      points_source: ASTM E119"))
+    assert len(errors) == 1
+    assert errors[0].endswith("fc1.yaml:7:14: error: FC1.fire.inputs.points_source: input "
+                              "'points_source' does not apply to curve 'standard' (expected "
+                              "only the inputs of the chosen curve (FORMAT.md, fire_curve), got "
+                              "'ASTM E119')")
+
+
+def test_fire_curve_tabulated__highest_at_an_end_between_points(evaluate):
+    block = evaluate(fire_sheet(E119 + "\n      duration: 45 min")).block("FC1.fire")
+    # Rising from 1550 °F at 30 min to 1625 °F at 45 min (ASTM E119 points, from memory): the
+    # highest temperature within 45 min is the interpolated end, 885.0 °C, at 45 min.
+    results = block.output.results
+    assert results["theta_max"].value - K == pytest.approx(885.0, abs=0.01)
+    assert results["t_max"].value == 45 * MIN
+    assert "highest at the end" in str(steps_of(block)["theta_g_max"].statement)

@@ -147,13 +147,17 @@ def _operand(out, path: str, si: float, unit: str, display: str | None = None,
     return Value(si, unit, display, temperature, given=True)
 
 
-def _input_error(out, path: str, what: str, expected: str, fallback: str = "") -> InputError:
-    """Return an error located at the input ``path`` (or, when it was not written, at
-    ``fallback``), naming the value as written."""
-    record = _record(out, path) or _record(out, fallback)
-    written = _record(out, path)
+def _input_error(out, path: str, what: str, expected: str, got: str,
+                 fallback: str = "") -> InputError:
+    """Return an error located at the input ``path`` and naming it as written; an input that
+    is not recorded (free text) is located at the input ``fallback``."""
+    record = _record(out, path)
+    if record is not None:
+        got = repr(record.written)
+    else:
+        record = _record(out, fallback)
     return InputError(record.loc if record else None, f"{out.block_key}.inputs.{path}", what,
-                      expected, repr(written.written) if written else "nothing")
+                      expected, got)
 
 
 def _time(si: float, given: bool = False) -> Value:
@@ -258,7 +262,8 @@ class _PointsField(Field):
 
 @dataclass(frozen=True)
 class _ProtectionField(Record):
-    """Fire protection: {thickness, conductivity, density, specific_heat} or {material, thickness}."""
+    """Fire protection: {thickness, conductivity, density, specific_heat} or
+    {material, thickness}."""
 
     def convert(self, node, ctx, path):
         value = super().convert(node, ctx, path)
@@ -310,7 +315,7 @@ def _check_curve_inputs(inp, out):
     if stray:
         raise _input_error(out, stray[0], f"input '{stray[0]}' does not apply to curve "
                            f"'{curve}'", "only the inputs of the chosen curve (FORMAT.md, "
-                           "fire_curve)", fallback="curve")
+                           "fire_curve)", repr(inp[stray[0]]), fallback="curve")
     if curve == "parametric":
         missing = [n for n in _PARAMETRIC_INPUTS if inp[n] is None]
         if missing:
@@ -386,11 +391,10 @@ def _nominal_steps(curve: FireCurve, duration: float, out):
                           "t in min)", t=_time(duration, True)),
              source=_curve_clause(curve),
              symbols={"theta_0": _SYMBOL_20C, "a": a_symbol})
-    out.statement("theta_max", "The curve rises throughout the exposure: its highest "
+    out.statement("theta_g_max", "The curve rises throughout the exposure: its highest "
                   "temperature is the one at the end.", curve(duration), yields="theta_max",
-                  label="Highest gas temperature", source=_curve_clause(curve),
-                  symbols={"theta_max": r"\theta_{g,max}"})
-    out.statement("t_max", "The end of the exposure.", duration, yields="t_max",
+                  label="Highest gas temperature", source=_curve_clause(curve))
+    out.statement("t_g_max", "The end of the exposure.", duration, yields="t_max",
                   label="Time of the highest gas temperature", source=_curve_clause(curve))
 
 
@@ -534,11 +538,11 @@ def _parametric_steps(curve: FireCurve, duration: float, out):
                              label=phrase("Gas temperature at the end of the exposure, before "
                                           "the peak, at t* = {ts} (in the formula t* in h)",
                                           ts=t_star_end), yields="theta_end")
-        out.statement("theta_max", "The exposure ends before the peak (t_max = {t_max}): the "
-                      "highest temperature within it is the one at the end.", theta_end,
+        out.statement("theta_g_max", "The exposure ends before the peak (t_max = {t_max}): "
+                      "the highest temperature within it is the one at the end.", theta_end,
                       values={"t_max": t_max}, yields="theta_max",
                       label="Highest gas temperature within the exposure", source=_ANNEX_A)
-        out.statement("t_max", "The end of the exposure.", duration, yields="t_max",
+        out.statement("t_g_max", "The end of the exposure.", duration, yields="t_max",
                       label="Time of the highest gas temperature within the exposure",
                       source=_ANNEX_A)
     elif duration < p.time_to_ambient:
@@ -585,11 +589,15 @@ def _tabulated_steps(curve: FireCurve, duration: float, out):
                  source=curve.source, symbols={"t_end": "t"})
     candidates = points + [(duration, theta_end)]
     t_max, theta_max = max(candidates, key=lambda p: (p[1], -p[0]))
-    out.statement("theta_max", "The highest point of the table within the exposure (the curve "
-                  "is linear between its points).", theta_max, yields="theta_max",
-                  label="Highest gas temperature", source=curve.source,
-                  symbols={"theta_max": r"\theta_{g,max}"})
-    out.statement("t_max", "The time of that point.", t_max, yields="t_max",
+    if t_max == duration and not at_point:
+        text, when = ("The curve rises from its last point to the end of the exposure: it is "
+                      "highest at the end."), "The end of the exposure."
+    else:
+        text, when = ("The highest point of the table within the exposure (the curve is linear "
+                      "between its points)."), "The time of that point."
+    out.statement("theta_g_max", text, theta_max, yields="theta_max",
+                  label="Highest gas temperature", source=curve.source)
+    out.statement("t_g_max", when, t_max, yields="t_max",
                   label="Time of the highest gas temperature", source=curve.source)
     out.note("{n} points, linear interpolation between them; the curve is not extended outside "
              "the table (a time beyond its last point is refused).", curve.source,
@@ -895,7 +903,7 @@ def _compute_steel(inp, out):
         written = _record(out, "duration")
         raise _input_error(out, "required_resistance", "outside the range of the method",
                            "a required period within the duration ("
-                           + (written.written if written else "the fire's") + ")")
+                           + (written.written if written else "the fire's") + ")", "")
     alpha = fire_convection(inp.convection_coefficient, fire)
     protection = inp.protection
     protected = protection is not None
