@@ -588,3 +588,11 @@ def test_fire_curve_tabulated__highest_at_an_end_between_points(evaluate):
     assert results["theta_max"].value - K == pytest.approx(885.0, abs=0.01)
     assert results["t_max"].value == 45 * MIN
     assert "highest at the end" in str(steps_of(block)["theta_g_max"].statement)
+
+
+def test_fire_field__records_the_curve_as_a_phrase_with_its_clause(evaluate):
+    block = evaluate(steel_sheet(UNPROTECTED)).block("SC1.member")
+    record = next(r for r in block.inputs if r.path == "fire")
+    # EN 1991-1-2:2002 §3.2.1: the standard curve, with αc = 25 W/(m²·K).
+    assert fill(record.shown, 3) == "standard temperature-time curve, αc = 25 W/(m²·K)"
+    assert record.source == "EN 1991-1-2:2002 §3.2.1, eq. (3.4)" and record.si == "standard"

@@ -59,6 +59,26 @@ _KELVIN = 273.15
 _TIME = dict(unit="s", display="min")
 
 
+#: The clause of each curve, and of its convection coefficient, as cited beside a step or note
+#: (a curve's own source text also states its limits; it is printed with the input).
+_CURVE_CLAUSE = {"standard": "EN 1991-1-2:2002 §3.2.1, eq. (3.4)",
+                 "external": "EN 1991-1-2:2002 §3.2.2, eq. (3.5)",
+                 "hydrocarbon": "EN 1991-1-2:2002 §3.2.3, eq. (3.6)",
+                 "parametric": "EN 1991-1-2:2002 Annex A"}
+_CONVECTION_CLAUSE = {"standard": "EN 1991-1-2:2002 §3.2.1",
+                      "external": "EN 1991-1-2:2002 §3.2.2",
+                      "hydrocarbon": "EN 1991-1-2:2002 §3.2.3",
+                      "parametric": "EN 1991-1-2:2002 §3.3.1.1"}
+
+
+def _curve_clause(curve: FireCurve) -> str:
+    return _CURVE_CLAUSE.get(curve.name, curve.source)
+
+
+def _convection_clause(curve: FireCurve) -> str:
+    return _CONVECTION_CLAUSE.get(curve.name, curve.source)
+
+
 def fire_description(curve: FireCurve) -> Phrase:
     """Return a short description of a fire curve for the input table: what it is and its αc."""
     words = _CURVE_WORDS.get(curve.name, curve.name)
@@ -90,7 +110,8 @@ class FireField(Field):
                 raise InvalidInput
             curve = named_fire(name)
             ctx.records.append(InputRecord(path, self.meaning, name, name, "",
-                                           source=curve.source, origin="given", loc=node.loc,
+                                           source=_curve_clause(curve), origin="given",
+                                           loc=node.loc,
                                            shown=fire_description(curve)))
             return curve
         if node.is_map and "ref" in node.value:
@@ -108,7 +129,8 @@ class FireField(Field):
             curve = target.obj
             ctx.records.append(InputRecord(path, self.meaning, f"ref {target.target}",
                                            curve.name, "",
-                                           source=f"result {target.target}; {curve.source}",
+                                           source=f"result {target.target}; "
+                                                  f"{_curve_clause(curve)}",
                                            origin="ref", ref=target.target, loc=node.loc,
                                            shown=fire_description(curve)))
             return curve
@@ -171,26 +193,6 @@ def _kelvin(si: float, given: bool = False) -> Value:
 def _celsius_top(highest: float) -> float:
     """Return a round upper limit for a temperature axis [K]: the next 100 °C above the data."""
     return (math.floor((highest - _KELVIN) / 100.0) + 1) * 100.0 + _KELVIN
-
-
-#: The clause of each curve, and of its convection coefficient, as cited beside a step or note
-#: (a curve's own source text also states its limits; it is printed with the input).
-_CURVE_CLAUSE = {"standard": "EN 1991-1-2:2002 §3.2.1, eq. (3.4)",
-                 "external": "EN 1991-1-2:2002 §3.2.2, eq. (3.5)",
-                 "hydrocarbon": "EN 1991-1-2:2002 §3.2.3, eq. (3.6)",
-                 "parametric": "EN 1991-1-2:2002 Annex A"}
-_CONVECTION_CLAUSE = {"standard": "EN 1991-1-2:2002 §3.2.1",
-                      "external": "EN 1991-1-2:2002 §3.2.2",
-                      "hydrocarbon": "EN 1991-1-2:2002 §3.2.3",
-                      "parametric": "EN 1991-1-2:2002 §3.3.1.1"}
-
-
-def _curve_clause(curve: FireCurve) -> str:
-    return _CURVE_CLAUSE.get(curve.name, curve.source)
-
-
-def _convection_clause(curve: FireCurve) -> str:
-    return _CONVECTION_CLAUSE.get(curve.name, curve.source)
 
 
 #: Fixed constants of the standards' formulas, printed as the standards write them.
