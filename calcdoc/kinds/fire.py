@@ -752,7 +752,7 @@ def _specific_heat_step(out, theta_a: float) -> Value:
                          label=label, source="EN 1993-1-2:2005 §3.4.1.2, eq. (3.2d)")
 
 
-def _first_step_common(inp, out, run):
+def _first_step_common(out, run):
     """Return the operands of the first explicit step: θa,t, θg,t, Δt."""
     theta_a = _operand(out, "initial_temperature", float(run.temperature[0]), "K",
                        temperature=ABSOLUTE)
@@ -762,7 +762,7 @@ def _first_step_common(inp, out, run):
 
 
 def _unprotected_first_step(inp, out, run, alpha: float):
-    theta_a, theta_g, dt = _first_step_common(inp, out, run)
+    theta_a, theta_g, dt = _first_step_common(out, run)
     c_a = _specific_heat_step(out, theta_a.si)
     factor = out.step("k_sh_A_m_V", "k_sh * A_m_V",
                       {"k_sh": out.input("shadow_factor"), "A_m_V": out.input("section_factor")},
@@ -794,7 +794,7 @@ def _unprotected_first_step(inp, out, run, alpha: float):
 
 
 def _protected_first_step(inp, out, run, protection: dict):
-    theta_a, theta_g, dt = _first_step_common(inp, out, run)
+    theta_a, theta_g, dt = _first_step_common(out, run)
     theta_g_1 = _kelvin(run.gas_temperature[1])
     c_a = _specific_heat_step(out, theta_a.si)
     material = protection["material"] is not None  # its properties are library values
