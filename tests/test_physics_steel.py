@@ -137,6 +137,14 @@ def test_protected_step__no_fall_while_gas_heats_en1993_1_2_eq4_27_rule():
     assert delta == 0.0
 
 
+def test_protected_step__formula_alone_without_the_rule():
+    # The same state as above: by hand φ = 1200·300/(605.88·7850)·0.020·150 = 0.22707 and the
+    # formula alone gives −(e^0.022707 − 1)·10 = −0.2297 K (EN 1993-1-2:2005 eq. (4.27)).
+    delta = protected_temperature_increment(400.0 + K, 410.0 + K, 400.0 + K, 150.0, 0.020, 0.12,
+                                            300.0, 1200.0, 30.0, no_fall_while_heating=False)
+    assert delta == pytest.approx(-0.2297, abs=0.0005)
+
+
 def test_protected_step__may_fall_while_gas_cools():
     # EN 1993-1-2:2005 eq. (4.27) with Δθg = −5 K (the rule applies only when Δθg > 0), by hand:
     # θg = 300 °C, θa = 400 °C, c_a(400 °C) = 605.88, φ = 0.22707:
@@ -183,7 +191,29 @@ def test_steel_above_1200C_refused_naming_the_time():
     hot = tabulated_fire([0.0, 7200.0], [1300.0 + K, 1300.0 + K], 25.0)
     with pytest.raises(PhysicsRangeError) as caught:
         unprotected_steel_heating(hot, 7200.0, 300.0, 25.0)
-    assert "at t =" in caught.value.quantity
+    # The duration is what the engineer can shorten; the message names the time and temperature.
+    assert caught.value.quantity == "duration" and caught.value.value == 7200.0
+    assert "at t =" in caught.value.expected and "1200 °C" in caught.value.expected
+
+
+@pytest.mark.parametrize("call, quantity", [
+    (lambda: specific_heat_carbon_steel(19.0 + K), "temperature"),
+    (lambda: net_heat_flux(1000.0, 500.0, 25.0, emissivity_member=0.0), "emissivity_member"),
+    (lambda: critical_temperature_from_utilisation(0.01), "utilisation"),
+    (lambda: protection_capacity_ratio(150.0, 0.0, 300.0, 1200.0, 600.0),
+     "protection_thickness"),
+    (lambda: unprotected_steel_heating(standard_fire(), 600.0, 100.0, 25.0, shadow_factor=1.5),
+     "shadow_factor"),
+    (lambda: protected_steel_heating(standard_fire(), 600.0, 100.0, 0.02, -0.1, 300.0, 1200.0),
+     "protection_conductivity"),
+    (lambda: unprotected_steel_heating(standard_fire(), 600.0, 100.0, 25.0,
+                                       initial_temperature=-5.0 + K), "initial_temperature"),
+])
+def test_range_errors_name_the_functions_own_parameter(call, quantity):
+    # The kind maps these names to its inputs (Kind.input_names); each must be the parameter's.
+    with pytest.raises(PhysicsRangeError) as caught:
+        call()
+    assert caught.value.quantity == quantity
 
 
 # --- histories ---------------------------------------------------------------------------------

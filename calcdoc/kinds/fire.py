@@ -4,33 +4,39 @@ A fire is passed between blocks as the curve itself: a ``fire_curve`` block publ
 :class:`~calcdoc.physics.firecurves.FireCurve` as the object of its ``temperature`` series, and a
 heated block takes it with ``fire: {ref: "FC1.fire.temperature"}`` or names a nominal curve inline
 with ``fire: standard``. :class:`FireField` is that input type; other fire kinds import it from
-here, with :func:`exposure_duration` and :func:`fire_convection`.
+here, with :func:`exposure_duration`, :func:`fire_convection`, :func:`fire_description` and
+:data:`FIRE_CAUTION`.
+
+Both kinds record data only (:mod:`calcdoc.data`): each curve's equation is a step at a
+characteristic time, Annex A's quantities are steps, the steel heating shows its first explicit
+increment with the numbers, and what a stepped solution gives (a time to a temperature, a
+maximum) is a statement. Figures are :class:`~calcdoc.data.FigureData`.
 """
 
 from __future__ import annotations
 
 import dataclasses
+import math
 from dataclasses import dataclass
 
 import numpy as np
 
-from calcdoc.errors import InputError, Location
-from calcdoc.kinds.base import (ABSOLUTE, Choice, Field, Figure, InputRecord, Kind,
-                                MaterialField, Quantity, Record, ResultSpec, Text, _Invalid,
-                                did_you_mean)
+from calcdoc.data import (ABSOLUTE, DIFFERENCE, Axis, FigureData, Line, Mark, Phrase, Point,
+                          Value, phrase)
+from calcdoc.errors import InputError, MissingInput
+from calcdoc.kinds.base import (Choice, Field, InputRecord, InvalidInput, Kind, MaterialField,
+                                Quantity, Record, ResultSpec, Text, did_you_mean)
 from calcdoc.located import plain
-from calcdoc.physics import MAX_DURATION, PhysicsRangeError
-from calcdoc.physics.firecurves import (NAMED_FIRES, FireCurve, named_fire, parametric_fire,
-                                        tabulated_fire)
-from calcdoc.physics.steel import (MINIMUM_UTILISATION,
-                                   PROTECTED_MAX_TIME_STEP, STEEL_DENSITY,
-                                   UNPROTECTED_MAX_TIME_STEP, critical_temperature_from_utilisation,
-                                   net_heat_flux, protected_steel_heating,
-                                   protected_temperature_increment, protection_capacity_ratio,
-                                   specific_heat_carbon_steel, temperature_at_time,
-                                   time_to_temperature, unprotected_steel_heating,
-                                   unprotected_temperature_increment)
-from calcdoc.render.numbers import format_quantity
+from calcdoc.physics import MAX_DURATION
+from calcdoc.physics.firecurves import (AMBIENT_TEMPERATURE, DEFAULT_DURATION, NAMED_FIRES,
+                                        FireCurve, named_fire, parametric_fire, tabulated_fire)
+from calcdoc.physics.steel import (MINIMUM_UTILISATION, PROTECTED_MAX_TIME_STEP, STEEL_DENSITY,
+                                   UNPROTECTED_MAX_TIME_STEP,
+                                   critical_temperature_from_utilisation, net_heat_flux,
+                                   protected_steel_heating, protected_temperature_increment,
+                                   protection_capacity_ratio, specific_heat_carbon_steel,
+                                   temperature_at_time, time_to_temperature,
+                                   unprotected_steel_heating, unprotected_temperature_increment)
 
 __all__ = ["KINDS", "FireField", "exposure_duration", "fire_convection", "fire_description",
            "FIRE_CAUTION"]
@@ -43,17 +49,41 @@ FIRE_CAUTION = ("This calculation supports, and does not replace, the judgement 
 _NAMED_TEXT = " | ".join(NAMED_FIRES)
 _FIRE_EXPECTED = (f"a named curve ({_NAMED_TEXT}) or {{ref: \"SHEET.block.temperature\"}} to a "
                   "fire_curve block")
+_CURVE_WORDS = {"standard": "standard temperature-time curve",
+                "external": "external fire curve",
+                "hydrocarbon": "hydrocarbon curve",
+                "tabulated": "tabulated curve",
+                "parametric": "parametric fire"}
+
+_KELVIN = 273.15
+_TIME = dict(unit="s", display="min")
 
 
-def fire_description(curve: FireCurve) -> str:
-    """Return a short description of a fire curve for the input table."""
-    words = {"standard": "standard temperature-time curve",
-             "external": "external fire curve",
-             "hydrocarbon": "hydrocarbon curve",
-             "tabulated": "tabulated curve",
-             "parametric": "parametric fire"}.get(curve.name, curve.name)
-    alpha = format_quantity(curve.convection_coefficient, "W/(m^2*K)", None, 3)
-    return f"{words}, αc = {alpha}"
+#: The clause of each curve, and of its convection coefficient, as cited beside a step or note
+#: (a curve's own source text also states its limits; it is printed with the input).
+_CURVE_CLAUSE = {"standard": "EN 1991-1-2:2002 §3.2.1, eq. (3.4)",
+                 "external": "EN 1991-1-2:2002 §3.2.2, eq. (3.5)",
+                 "hydrocarbon": "EN 1991-1-2:2002 §3.2.3, eq. (3.6)",
+                 "parametric": "EN 1991-1-2:2002 Annex A"}
+_CONVECTION_CLAUSE = {"standard": "EN 1991-1-2:2002 §3.2.1",
+                      "external": "EN 1991-1-2:2002 §3.2.2",
+                      "hydrocarbon": "EN 1991-1-2:2002 §3.2.3",
+                      "parametric": "EN 1991-1-2:2002 §3.3.1.1"}
+
+
+def _curve_clause(curve: FireCurve) -> str:
+    return _CURVE_CLAUSE.get(curve.name, curve.source)
+
+
+def _convection_clause(curve: FireCurve) -> str:
+    return _CONVECTION_CLAUSE.get(curve.name, curve.source)
+
+
+def fire_description(curve: FireCurve) -> Phrase:
+    """Return a short description of a fire curve for the input table: what it is and its αc."""
+    words = _CURVE_WORDS.get(curve.name, curve.name)
+    return phrase(words + ", αc = {alpha}",
+                  alpha=Value(curve.convection_coefficient, "W/(m^2*K)", given=True))
 
 
 @dataclass(frozen=True)
@@ -61,7 +91,8 @@ class FireField(Field):
     """A fire: a nominal curve named inline (``standard``) or a ref to a fire_curve's series.
 
     The converted value is the :class:`FireCurve` itself. A named curve is built with the default
-    duration (120 min); blocks take their own ``duration`` where they set one.
+    duration (120 min); blocks take their own ``duration`` where they set one. The input is
+    recorded with ``shown`` a :class:`~calcdoc.data.Phrase` (:func:`fire_description`).
     """
 
     def type_text(self) -> str:
@@ -76,32 +107,35 @@ class FireField(Field):
                     hint = f"a {name} curve needs its own fire_curve block; refer to it with ref"
                 ctx.error(node, path, f"unknown fire curve '{name}'", _FIRE_EXPECTED, repr(name),
                           hint)
-                raise _Invalid
+                raise InvalidInput
             curve = named_fire(name)
             ctx.records.append(InputRecord(path, self.meaning, name, name, "",
-                                           fire_description(curve), curve.source, "given",
-                                           loc=node.loc))
+                                           source=_curve_clause(curve), origin="given",
+                                           loc=node.loc,
+                                           shown=fire_description(curve)))
             return curve
         if node.is_map and "ref" in node.value:
             extra = sorted(set(node.value) - {"ref"})
             if extra:
                 ctx.error(node.key_locs[extra[0]], path, f"unknown key '{extra[0]}'", "ref",
                           repr(extra[0]))
-                raise _Invalid
+                raise InvalidInput
             target = ctx.resolve_ref(node.value["ref"], path)
             if not isinstance(target.obj, FireCurve):
                 ctx.error(node, path, f"'{self.name}' does not refer to a fire curve",
                           "the temperature series of a fire_curve block, e.g. "
                           "FC1.fire.temperature", target.target)
-                raise _Invalid
+                raise InvalidInput
             curve = target.obj
             ctx.records.append(InputRecord(path, self.meaning, f"ref {target.target}",
-                                           curve.name, "", fire_description(curve),
-                                           f"result {target.target}; {curve.source}", "ref",
-                                           target.target, node.loc))
+                                           curve.name, "",
+                                           source=f"result {target.target}; "
+                                                  f"{_curve_clause(curve)}",
+                                           origin="ref", ref=target.target, loc=node.loc,
+                                           shown=fire_description(curve)))
             return curve
         ctx.error(node, path, f"'{self.name}' is not a fire", _FIRE_EXPECTED, repr(plain(node)))
-        raise _Invalid
+        raise InvalidInput
 
 
 def exposure_duration(duration: float | None, fire: FireCurve) -> float:
@@ -114,23 +148,59 @@ def fire_convection(coefficient: float | None, fire: FireCurve) -> float:
     return float(coefficient) if coefficient is not None else float(fire.convection_coefficient)
 
 
-# ----------------------------------------------------------------------------- input helpers
+# ----------------------------------------------------------------------------- helpers
 
 
-class _Word(str):
-    """A choice that remembers where it was written, for errors raised in compute."""
+def _record(out, path: str) -> InputRecord | None:
+    for record in out.records:
+        if record.path == path:
+            return record
+    return None
 
-    loc: Location
-    where: str
+
+def _operand(out, path: str, si: float, unit: str, display: str | None = None,
+             temperature: str | None = None) -> Value:
+    """Return the input at ``path`` as written where it holds ``si``; else ``si`` as a given
+    value (a default taken from the fire, a library property)."""
+    record = _record(out, path)
+    if record is not None and isinstance(record.si, (int, float)) and math.isclose(
+            float(record.si), si, rel_tol=1e-12, abs_tol=0.0):
+        return record.value()
+    return Value(si, unit, display, temperature, given=True)
 
 
-@dataclass(frozen=True)
-class _LocatedChoice(Choice):
-    def convert(self, node, ctx, path):
-        value = super().convert(node, ctx, path)
-        word = _Word(value)
-        word.loc, word.where = node.loc, ctx.where(path)
-        return word
+def _input_error(out, path: str, what: str, expected: str, got: str,
+                 fallback: str = "") -> InputError:
+    """Return an error located at the input ``path`` and naming it as written; an input that
+    is not recorded (free text) is located at the input ``fallback``."""
+    record = _record(out, path)
+    if record is not None:
+        got = repr(record.written)
+    else:
+        record = _record(out, fallback)
+    return InputError(record.loc if record else None, f"{out.block_key}.inputs.{path}", what,
+                      expected, got)
+
+
+def _time(si: float, given: bool = False) -> Value:
+    return Value(float(si), given=given, **_TIME)
+
+
+def _kelvin(si: float, given: bool = False) -> Value:
+    return Value(float(si), "K", temperature=ABSOLUTE, given=given)
+
+
+def _celsius_top(highest: float) -> float:
+    """Return a round upper limit for a temperature axis [K]: the next 100 °C above the data."""
+    return (math.floor((highest - _KELVIN) / 100.0) + 1) * 100.0 + _KELVIN
+
+
+#: Fixed constants of the standards' formulas, printed as the standards write them.
+_THETA_20 = _kelvin(AMBIENT_TEMPERATURE, given=True)
+_SYMBOL_20C = r"20\,\mathrm{{}^{\circ}C}"
+
+
+# ----------------------------------------------------------------------------- input fields
 
 
 @dataclass(frozen=True)
@@ -144,11 +214,10 @@ class _PointsField(Field):
         if not node.is_list or len(node.value) < 2:
             ctx.error(node, path, "'points' needs at least two points", self.type_text(),
                       repr(plain(node)))
-            raise _Invalid
-        time_field = Quantity("time", unit="s", at_least=0.0)
-        temperature_field = Quantity("temperature", unit="K", temperature=ABSOLUTE,
-                                     greater_than=0.0)
-        points, failed = [], False
+            raise InvalidInput
+        time_field = Quantity("time", unit="s")
+        temperature_field = Quantity("temperature", unit="K", temperature=ABSOLUTE)
+        points, failed, previous = [], False, None
         for i, item in enumerate(node.value):
             item_path = f"{path}[{i}]"
             if not item.is_list or len(item.value) != 2 or not all(v.is_scalar
@@ -157,45 +226,46 @@ class _PointsField(Field):
                           'e.g. ["30 min", "843 degC"]', repr(plain(item)))
                 failed = True
                 continue
+            time_node, temperature_node = item.value
             try:
-                t, _ = time_field.parse_text(item.value[0].value, ctx, item.value[0],
-                                             item_path + "[0]")
-                temperature, _ = temperature_field.parse_text(item.value[1].value, ctx,
-                                                              item.value[1], item_path + "[1]")
-                time_field._check_range(t, ctx, item.value[0], item_path + "[0]",
-                                        repr(item.value[0].value))
-                temperature_field._check_range(temperature, ctx, item.value[1],
-                                               item_path + "[1]", repr(item.value[1].value))
-            except _Invalid:
+                t, _ = time_field.parse_text(time_node.value, ctx, time_node, item_path + "[0]")
+                temperature, _ = temperature_field.parse_text(temperature_node.value, ctx,
+                                                              temperature_node,
+                                                              item_path + "[1]")
+            except InvalidInput:
                 failed = True
                 continue
+            if not temperature > 0.0:
+                ctx.error(temperature_node, item_path + "[1]", "'temperature' out of range",
+                          "an absolute temperature above 0 K", repr(temperature_node.value))
+                failed = True
             if not points and t != 0.0:
-                ctx.error(item.value[0], item_path + "[0]",
+                ctx.error(time_node, item_path + "[0]",
                           "the first point must be at the start of the exposure", "0 min",
-                          repr(item.value[0].value))
+                          repr(time_node.value))
                 failed = True
             elif points and t <= points[-1][0]:
-                ctx.error(item.value[0], item_path + "[0]", "times are not strictly increasing",
-                          f"a time after {format_quantity(points[-1][0], 's', 'min', 6)}",
-                          repr(item.value[0].value))
+                ctx.error(time_node, item_path + "[0]", "times are not strictly increasing",
+                          f"a time after {previous!r}", repr(time_node.value))
                 failed = True
             points.append((t, temperature))
+            previous = time_node.value
         if failed:
-            raise _Invalid
-        low = min(p[1] for p in points)
-        high = max(p[1] for p in points)
-        display = (f"{len(points)} points, 0 to {format_quantity(points[-1][0], 's', 'min', 4)}, "
-                   f"{format_quantity(low, 'K', 'degC', 4)} to "
-                   f"{format_quantity(high, 'K', 'degC', 4)}")
+            raise InvalidInput
+        temperatures = [p[1] for p in points]
+        shown = phrase("{n} points, 0 to {end}, {low} to {high}",
+                       n=Value(float(len(points)), given=True), end=_time(points[-1][0], True),
+                       low=_kelvin(min(temperatures), True), high=_kelvin(max(temperatures), True))
         ctx.records.append(InputRecord(path, self.meaning, f"{len(points)} points",
-                                       [list(p) for p in points], "", display, "", "given",
-                                       loc=node.loc))
+                                       [list(p) for p in points], "", origin="given",
+                                       loc=node.loc, shown=shown))
         return points
 
 
 @dataclass(frozen=True)
 class _ProtectionField(Record):
-    """Fire protection: {thickness, conductivity, density, specific_heat} or {material, thickness}."""
+    """Fire protection: {thickness, conductivity, density, specific_heat} or
+    {material, thickness}."""
 
     def convert(self, node, ctx, path):
         value = super().convert(node, ctx, path)
@@ -205,7 +275,7 @@ class _ProtectionField(Record):
                 ctx.error(node, path, "give either a material or the protection's properties",
                           "{material, thickness} or {thickness, conductivity, density, "
                           "specific_heat}", "material and " + ", ".join(own))
-                raise _Invalid
+                raise InvalidInput
             material = value["material"]
             missing = [k for k in ("conductivity", "density", "specific_heat")
                        if material.get(k) is None]
@@ -213,7 +283,7 @@ class _ProtectionField(Record):
                 ctx.error(node, path, f"material '{material.get('name')}' lacks "
                           + ", ".join(missing), "a material with conductivity, density and "
                           "specific_heat", "missing " + ", ".join(missing))
-                raise _Invalid
+                raise InvalidInput
             for key in ("conductivity", "density", "specific_heat"):
                 value[key] = float(material[key])
             value["source"] = material.get("source", "")
@@ -225,14 +295,10 @@ class _ProtectionField(Record):
                 ctx.error(node, path, "the protection's properties are incomplete",
                           "{thickness, conductivity, density, specific_heat} or "
                           "{material, thickness}", "missing " + ", ".join(missing))
-                raise _Invalid
+                raise InvalidInput
             value["source"] = ""
             value["title"] = "fire protection"
         return value
-
-
-def _located_error(word: _Word, what: str, expected: str, got: str, hint: str | None = None):
-    return InputError(word.loc, word.where, what, expected, got, hint)
 
 
 # ----------------------------------------------------------------------------- fire_curve
@@ -240,82 +306,55 @@ def _located_error(word: _Word, what: str, expected: str, got: str, hint: str | 
 _PARAMETRIC_INPUTS = ("opening_factor", "fire_load_density", "thermal_inertia", "fire_growth",
                       "floor_area", "height")
 _TABULATED_INPUTS = ("points", "points_source")
-_DEFAULT_DURATION = 7200.0
+_ANNEX_A = "EN 1991-1-2:2002 Annex A"
 
 
-def _curve_inputs_check(inp):
+def _check_curve_inputs(inp, out):
     curve = inp.curve
-    given = {name for name in _PARAMETRIC_INPUTS + _TABULATED_INPUTS if inp[name] is not None}
-    allowed = {"parametric": set(_PARAMETRIC_INPUTS),
-               "tabulated": set(_TABULATED_INPUTS)}.get(curve, set())
-    stray = sorted(given - allowed)
+    given = [name for name in _PARAMETRIC_INPUTS + _TABULATED_INPUTS if inp[name] is not None]
+    allowed = {"parametric": _PARAMETRIC_INPUTS, "tabulated": _TABULATED_INPUTS}.get(curve, ())
+    stray = [name for name in given if name not in allowed]
     if stray:
-        raise _located_error(curve, f"input '{stray[0]}' does not apply to curve '{curve}'",
-                             "only the inputs of the chosen curve (FORMAT.md, fire_curve)",
-                             ", ".join(stray))
+        raise _input_error(out, stray[0], f"input '{stray[0]}' does not apply to curve "
+                           f"'{curve}'", "only the inputs of the chosen curve (FORMAT.md, "
+                           "fire_curve)", repr(inp[stray[0]]), fallback="curve")
     if curve == "parametric":
         missing = [n for n in _PARAMETRIC_INPUTS if inp[n] is None]
         if missing:
-            raise _located_error(curve, "curve 'parametric' needs the inputs of EN 1991-1-2 "
-                                 "Annex A", ", ".join(_PARAMETRIC_INPUTS), "missing "
-                                 + ", ".join(missing))
+            raise MissingInput(missing[0], "every input of EN 1991-1-2 Annex A for curve "
+                               "'parametric' (missing " + ", ".join(missing) + ")")
     if curve == "tabulated":
-        missing = [n for n in ("points", "convection_coefficient") if inp[n] is None]
-        if missing:
-            raise _located_error(curve, "curve 'tabulated' needs its points and a convection "
-                                 "coefficient (a tabulated curve has none of its own)",
-                                 "points and convection_coefficient", "missing "
-                                 + ", ".join(missing))
+        if inp.points is None:
+            raise MissingInput("points", "the points of curve 'tabulated'")
+        if inp.convection_coefficient is None:
+            raise MissingInput("convection_coefficient", "a convection coefficient for curve "
+                               "'tabulated' (a tabulated curve has none of its own)")
 
 
 def _build_curve(inp, out) -> FireCurve:
     name = str(inp.curve)
     if name in NAMED_FIRES:
-        duration = inp.duration if inp.duration is not None else _DEFAULT_DURATION
-        curve = named_fire(name, duration)
+        curve = named_fire(name, inp.duration if inp.duration is not None else DEFAULT_DURATION)
     elif name == "tabulated":
-        times = [p[0] for p in inp.points]
-        temperatures = [p[1] for p in inp.points]
-        curve = tabulated_fire(times, temperatures, inp.convection_coefficient,
-                               source=inp.points_source or "points tabulated in this block")
-        if inp.duration is not None:
-            if inp.duration > curve.duration * (1 + 1e-12):
-                raise PhysicsRangeError(
-                    "duration", format_quantity(inp.duration, "s", "min", 4),
-                    f"duration <= {format_quantity(curve.duration, 's', 'min', 4)}, the last "
-                    "time of the table (a tabulated curve is not extended beyond its points)")
-            curve = dataclasses.replace(curve, duration=float(inp.duration))
+        curve = tabulated_fire([p[0] for p in inp.points], [p[1] for p in inp.points],
+                               inp.convection_coefficient,
+                               source=inp.points_source or "points tabulated in this block",
+                               duration=inp.duration)
     else:
-        duration = inp.duration if inp.duration is not None else _DEFAULT_DURATION
-        try:
-            curve = parametric_fire(inp.opening_factor, inp.fire_load_density,
-                                    inp.thermal_inertia, str(inp.fire_growth), inp.floor_area,
-                                    inp.height, duration)
-        except PhysicsRangeError as exc:
-            raise _renamed(exc, {"opening factor": "opening_factor",
-                                 "thermal inertia": "thermal_inertia",
-                                 "fire load density": "fire_load_density",
-                                 "floor area": "floor_area", "height": "height",
-                                 "fire growth": "fire_growth"}) from None
+        curve = parametric_fire(inp.opening_factor, inp.fire_load_density, inp.thermal_inertia,
+                                str(inp.fire_growth), inp.floor_area, inp.height,
+                                inp.duration if inp.duration is not None else DEFAULT_DURATION)
     if inp.duration is None:
-        out.note(f"Duration {format_quantity(curve.duration, 's', 'min', 4)}: "
-                 + ("the last time of the table." if name == "tabulated"
-                    else "calcdoc's default exposure (FORMAT.md, fire_curve)."),
-                 "FORMAT.md, fire_curve")
+        out.note("Duration {d}: " + ("the last time of the table." if name == "tabulated"
+                                     else "calcdoc's default exposure (FORMAT.md, fire_curve)."),
+                 "FORMAT.md, fire_curve", d=_time(curve.duration, True))
     if inp.convection_coefficient is not None and name != "tabulated":
-        out.note(f"Convection coefficient set to "
-                 f"{out.qt(inp.convection_coefficient, 'W/(m^2*K)')} in place of the curve's "
-                 f"{out.qt(curve.convection_coefficient, 'W/(m^2*K)')}.", curve.source)
+        out.note("Convection coefficient set to {alpha} in place of the curve's {own}.",
+                 _convection_clause(curve), alpha=out.input("convection_coefficient"),
+                 own=Value(curve.convection_coefficient, "W/(m^2*K)", given=True))
         curve = dataclasses.replace(curve, convection_coefficient=float(
             inp.convection_coefficient))
     return curve
-
-
-def _renamed(exc: PhysicsRangeError, names: dict[str, str]) -> PhysicsRangeError:
-    for key, input_name in names.items():
-        if key in str(exc.quantity):
-            return PhysicsRangeError(input_name, exc.value, exc.expected)
-    return exc
 
 
 def _series_times(curve: FireCurve, duration: float) -> np.ndarray:
@@ -328,138 +367,274 @@ def _series_times(curve: FireCurve, duration: float) -> np.ndarray:
     return np.unique(np.asarray(times, dtype=float))
 
 
-def _nominal_steps(curve: FireCurve, t_end: float, out):
-    minutes = t_end / 60.0
-    m = out.q(minutes, "1")
-    if curve.name == "standard":
-        substituted = rf"20 + 345\,\log_{{10}}(8 \cdot {m} + 1)"
-    elif curve.name == "external":
-        substituted = (rf"660\,(1 - 0.687\,e^{{-0.32 \cdot {m}}} - 0.313\,e^{{-3.8 \cdot {m}}})"
-                       " + 20")
-    else:
-        substituted = (rf"1080\,(1 - 0.325\,e^{{-0.167 \cdot {m}}} - 0.675\,e^{{-2.5 \cdot {m}}})"
-                       " + 20")
-    out.step(r"\theta_g", curve.equation, substituted, curve(t_end), "K",
-             label=f"Gas temperature at the end of the exposure (t = {out.qt(t_end, 's', 'min')},"
-                   " t in min, θ in °C)", source=curve.source, display_unit="degC")
+# The nominal curves of EN 1991-1-2:2002 §3.2 as steps: θg = 20 °C + a·f(t), t in minutes as a
+# number, a the curve's rise in K.
+_NOMINAL = {
+    "standard": ("theta_0 + a * log10(8 * t + 1)", 345.0),
+    "external": ("theta_0 + a * (1 - 0.687 * exp(-0.32 * t) - 0.313 * exp(-3.8 * t))", 660.0),
+    "hydrocarbon": ("theta_0 + a * (1 - 0.325 * exp(-0.167 * t) - 0.675 * exp(-2.5 * t))",
+                    1080.0),
+}
 
 
-def _parametric_steps(curve: FireCurve, out):
+def _rise(kelvin: float) -> tuple[Value, str]:
+    """Return a fixed rise of a standard's formula as an operand, and its printed symbol."""
+    return (Value(kelvin, "K", temperature=DIFFERENCE, given=True),
+            rf"{kelvin:g}\,\mathrm{{K}}")
+
+
+def _nominal_steps(curve: FireCurve, duration: float, out):
+    expr, rise = _NOMINAL[curve.name]
+    a, a_symbol = _rise(rise)
+    out.step("theta_g", expr, {"theta_0": _THETA_20, "a": a,
+                               "t": Value(duration / 60.0, given=True)},
+             curve(duration), "K", temperature=ABSOLUTE, yields="theta_end",
+             label=phrase("Gas temperature at the end of the exposure, t = {t} (in the formula "
+                          "t in min)", t=_time(duration, True)),
+             source=_curve_clause(curve),
+             symbols={"theta_0": _SYMBOL_20C, "a": a_symbol})
+    out.statement("theta_g_max", "The curve rises throughout the exposure: its highest "
+                  "temperature is the one at the end.", curve(duration), yields="theta_max",
+                  label="Highest gas temperature", source=_curve_clause(curve))
+    out.statement("t_g_max", "The end of the exposure.", duration, yields="t_max",
+                  label="Time of the highest gas temperature", source=_curve_clause(curve))
+
+
+def _annex_a_temperature(out, name: str, t_star_hours: float, value: float, label, **kw):
+    """Record eq. (A.1) at a fictitious time t* (a number of hours) as a step."""
+    a, a_symbol = _rise(1325.0)
+    return out.step(name, "theta_0 + a * (1 - 0.324 * exp(-0.2 * t_star) - 0.204 * exp(-1.7 * "
+                          "t_star) - 0.472 * exp(-19 * t_star))",
+                    {"theta_0": _THETA_20, "a": a, "t_star": Value(t_star_hours)}, value, "K",
+                    temperature=ABSOLUTE, label=label, source=f"{_ANNEX_A}, eq. (A.1)",
+                    symbols={"theta_0": _SYMBOL_20C, "a": a_symbol, "t_star": "t^*",
+                             "theta_max": r"\theta_{max}"}, **kw)
+
+
+def _parametric_steps(curve: FireCurve, duration: float, out):
     p = curve.parametric
-    q_mj = p.fire_load_density / 1e6
-    src = "EN 1991-1-2:2002 Annex A"
-    out.step(r"\Gamma", r"\frac{(O/b)^2}{(0.04/1160)^2}",
-             rf"\frac{{({out.q(p.opening_factor, '1')}/{out.q(p.thermal_inertia, '1')})^2}}"
-             r"{(0.04/1160)^2}", p.gamma, "1", label="Time factor", source=f"{src}, eq. (A.2b)")
-    t_vent = 0.2e-3 * q_mj / p.opening_factor
-    out.step(r"t_{max}", r"\max\left(0.2\cdot10^{-3}\,q_{t,d}/O;\ t_{lim}\right)",
-             rf"\max\left(0.2\cdot10^{{-3}} \cdot {out.q(q_mj, '1')}/{out.q(p.opening_factor, '1')};"
-             rf"\ {out.q(p.limiting_time / 3600.0, '1')}\right)\,\mathrm{{h}}",
-             p.t_max, "s", label=f"Time of the peak ({p.regime}; t_lim for "
-                                 f"{p.fire_growth} growth, q_t,d in MJ/m², t in h)",
-             source=f"{src}, eq. (A.7)", display_unit="min")
-    if p.regime == "fuel-controlled":
-        t_lim_h = p.limiting_time / 3600.0
-        out.step(r"O_{lim}", r"0.1\cdot10^{-3}\,q_{t,d}/t_{lim}",
-                 rf"0.1\cdot10^{{-3}} \cdot {out.q(q_mj, '1')}/{out.q(t_lim_h, '1')}",
-                 p.opening_factor_limit, "m^0.5", label="Limiting opening factor",
-                 source=f"{src}, eq. (A.10)")
-        out.step(r"\Gamma_{lim}", r"\frac{(O_{lim}/b)^2}{(0.04/1160)^2}",
-                 rf"\frac{{({out.q(p.opening_factor_limit, '1')}/"
-                 rf"{out.q(p.thermal_inertia, '1')})^2}}{{(0.04/1160)^2}}", p.gamma_limit, "1",
-                 label="Time factor of the fuel-controlled fire", source=f"{src}, eq. (A.9)")
+    fuel = p.regime == "fuel-controlled"
+    peak_within = p.t_max <= duration
+    O, b, q = (out.input("opening_factor"), out.input("thermal_inertia"),
+               out.input("fire_load_density"))
+    O_ref = Value(0.04, "m^0.5", given=True)
+    b_ref = Value(1160.0, "J/(m^2*s^0.5*K)", given=True)
+    symbols = {"O_ref": "0.04", "b_ref": "1160", "q_t_d": "q_{t,d}", "t_max_v": "t_{max,v}",
+               "t_lim": "t_{lim}", "t_max": "t_{max}", "Gamma_lim": r"\Gamma_{lim}",
+               "O_lim": "O_{lim}", "t_star_max": "t^*_{max}", "t_star_max_c": "t^*_{max}",
+               "t_star_end": "t^*", "t_end": "t", "q_ref": "75", "theta_max": r"\theta_{max}"}
+    # Annex A's coefficients carry units (t in h, q_t,d in MJ/m²): as operands they print so.
+    c_vent = Value(0.2e-3 * 3600.0 / 1e6, "s*m^0.5/(J/m^2)", "h*m^0.5/(MJ/m^2)", given=True)
+    c_lim = Value(0.1e-3 * 3600.0 / 1e6, "s*m^0.5/(J/m^2)", "h*m^0.5/(MJ/m^2)", given=True)
+    symbols.update({"c_vent": r"0.2\cdot10^{-3}", "c_lim": r"0.1\cdot10^{-3}"})
+
+    gamma = out.step("Gamma", "(O / b) ** 2 / (O_ref / b_ref) ** 2",
+                     {"O": O, "b": b, "O_ref": O_ref, "b_ref": b_ref}, p.gamma,
+                     label="Time factor of the compartment", source=f"{_ANNEX_A}, eq. (A.2b)",
+                     symbols=symbols)
+    out.statement("t_lim", f"For {p.fire_growth} fire growth (25, 20 or 15 min for slow, "
+                  "medium or fast growth).", p.limiting_time, "s", display="min",
+                  label="Limiting time", source=f"{_ANNEX_A}, with eq. (A.7); Annex E, "
+                  "Table E.5", symbols=symbols)
+    t_lim = _time(p.limiting_time, True)
+    t_vent = out.step("t_max_v", "c_vent * q_t_d / O", {"c_vent": c_vent, "q_t_d": q, "O": O},
+                      c_vent.si * q.si / O.si, "s", display="h",
+                      label="Duration of a ventilation-controlled heating phase",
+                      source=f"{_ANNEX_A}, eq. (A.7)", symbols=symbols)
+    regime = ("fuel-controlled (t_max = t_lim)" if fuel
+              else "ventilation-controlled (t_max,v > t_lim)")
+    t_max = out.step("t_max", "max(t_max_v, t_lim)", {"t_max_v": t_vent, "t_lim": t_lim},
+                     p.t_max, "s", display="min",
+                     label=f"Time of the peak: the fire is {regime}",
+                     source=f"{_ANNEX_A}, eq. (A.7)", symbols=symbols,
+                     yields="t_max" if peak_within else None)
+    if fuel:
+        o_lim = out.step("O_lim", "c_lim * q_t_d / t_lim", {"c_lim": c_lim, "q_t_d": q,
+                                                            "t_lim": t_lim},
+                         p.opening_factor_limit, "m^0.5", label="Limiting opening factor",
+                         source=f"{_ANNEX_A}, eq. (A.10)", symbols=symbols)
+        gamma_lim = out.step("Gamma_lim", "(O_lim / b) ** 2 / (O_ref / b_ref) ** 2",
+                             {"O_lim": o_lim, "b": b, "O_ref": O_ref, "b_ref": b_ref},
+                             p.gamma_limit, label="Time factor of the fuel-controlled fire",
+                             source=f"{_ANNEX_A}, eq. (A.9)", symbols=symbols)
+        q_ref = Value(75e6, "J/m^2", "MJ/m^2", given=True)
         if p.k_applied:
-            out.step("k", r"1 + \frac{O - 0.04}{0.04}\,\frac{q_{t,d} - 75}{75}\,"
-                          r"\frac{1160 - b}{1160}",
-                     rf"1 + \frac{{{out.q(p.opening_factor, '1')} - 0.04}}{{0.04}}\,"
-                     rf"\frac{{{out.q(q_mj, '1')} - 75}}{{75}}\,"
-                     rf"\frac{{1160 - {out.q(p.thermal_inertia, '1')}}}{{1160}}", p.k, "1",
-                     label="Factor on Γ_lim (O > 0.04, q_t,d < 75 MJ/m² and b < 1160)",
-                     source=f"{src}, with eq. (A.9)")
-        out.step(r"t^*_{max}", r"t_{lim}\,\Gamma_{lim}" + (r"\,k" if p.k_applied else ""),
-                 rf"{out.q(t_lim_h, '1')} \cdot {out.q(p.gamma_limit, '1')}"
-                 + (rf" \cdot {out.q(p.k, '1')}" if p.k_applied else ""),
-                 p.t_star_max_heating, "1", label="Fictitious time at the peak [h]",
-                 source=f"{src}, eq. (A.8)")
+            k = out.step("k", "1 + (O - O_ref) / O_ref * (q_t_d - q_ref) / q_ref * "
+                              "(b_ref - b) / b_ref",
+                         {"O": O, "O_ref": O_ref, "q_t_d": q, "q_ref": q_ref, "b": b,
+                          "b_ref": b_ref}, p.k,
+                         label="Factor on Γ_lim: O > 0.04, q_t,d < 75 and b < 1160 all hold",
+                         source=f"{_ANNEX_A}, with eq. (A.9)", symbols=symbols)
+            heating = "t_lim * Gamma_lim * k"
+            operands = {"t_lim": t_lim, "Gamma_lim": gamma_lim, "k": k}
+        else:
+            out.statement("k", "k = 1: its conditions, O > {O_ref}, q_t,d < {q_ref} and "
+                          "b < {b_ref}, do not all hold.", 1.0,
+                          values={"O_ref": O_ref, "q_ref": q_ref, "b_ref": b_ref},
+                          label="Factor on Γ_lim", source=f"{_ANNEX_A}, with eq. (A.9)")
+            heating = "t_lim * Gamma_lim"
+            operands = {"t_lim": t_lim, "Gamma_lim": gamma_lim}
+        t_star_max = out.step("t_star_max", heating, operands, p.t_star_max_heating * 3600.0,
+                              "s", display="h", label="Fictitious time at the peak",
+                              source=f"{_ANNEX_A}, eq. (A.8)", symbols=symbols)
     else:
-        out.step(r"t^*_{max}", r"t_{max}\,\Gamma",
-                 rf"{out.q(p.t_max / 3600.0, '1')} \cdot {out.q(p.gamma, '1')}",
-                 p.t_star_max_heating, "1", label="Fictitious time at the peak [h]",
-                 source=f"{src}, eq. (A.2a)")
-    ts = out.q(p.t_star_max_heating, "1")
-    out.step(r"\theta_{max}", curve.equation.replace("t^*", "t^*_{max}"),
-             rf"20 + 1325\left(1 - 0.324\,e^{{-0.2 \cdot {ts}}} - 0.204\,e^{{-1.7 \cdot {ts}}}"
-             rf" - 0.472\,e^{{-19 \cdot {ts}}}\right)", p.theta_max, "K",
-             label="Peak gas temperature (θ in °C)", source=f"{src}, eq. (A.1)",
-             display_unit="degC")
-    out.step(r"t^*_{max,c}", r"(0.2\cdot10^{-3}\,q_{t,d}/O)\,\Gamma",
-             rf"(0.2\cdot10^{{-3}} \cdot {out.q(q_mj, '1')}/{out.q(p.opening_factor, '1')})"
-             rf" \cdot {out.q(p.gamma, '1')}", p.t_star_max, "1",
-             label="t*_max of the cooling phase [h]", source=f"{src}, eq. (A.12)")
-    if p.regime == "fuel-controlled":
-        out.step("x", r"t_{lim}\,\Gamma / t^*_{max,c}",
-                 rf"{out.q(p.limiting_time / 3600.0, '1')} \cdot {out.q(p.gamma, '1')}"
-                 rf"/{out.q(p.t_star_max, '1')}", p.x, "1",
-                 label="x of the cooling phase (t_max = t_lim)", source=f"{src}, eq. (A.11)")
-    rate_formula = {"A.11a": "625", "A.11b": r"250\,(3 - t^*_{max,c})", "A.11c": "250"}
-    rate_numbers = {"A.11a": "625", "A.11b": rf"250\,(3 - {out.q(p.t_star_max, '1')})",
-                    "A.11c": "250"}
-    out.step("r", rate_formula[p.cooling_equation], rate_numbers[p.cooling_equation],
-             p.cooling_rate, "1",
-             label="Cooling rate, K per hour of t* (θg = θmax − r (t* − t*_max,c x))",
-             source=f"{src}, eq. ({p.cooling_equation})")
-    out.note(f"Annex A of EN 1991-1-2 is informative: its use is subject to the National Annex. "
-             f"The fire is {p.regime}. The compartment is taken to have no openings in the "
-             f"roof, and the fire load to burn out completely (Annex A). Once the cooling line "
-             f"reaches 20 °C (at {out.qt(p.time_to_ambient, 's', 'min')}) the gas is held at "
-             f"20 °C.", src)
+        out.statement("x", "The peak is at t_max,v > t_lim: the fire is ventilation-controlled; "
+                      "the heating phase runs on Γ and the cooling phase takes x = 1.", 1.0,
+                      label="Regime of the fire", source=f"{_ANNEX_A}, eqs. (A.7), (A.11)")
+        t_star_max = out.step("t_star_max", "t_max * Gamma", {"t_max": t_max, "Gamma": gamma},
+                              p.t_star_max_heating * 3600.0, "s", display="h",
+                              label="Fictitious time at the peak (also t*_max of the cooling "
+                                    "phase)", source=f"{_ANNEX_A}, eqs. (A.2a), (A.12)",
+                              symbols=symbols)
+    theta_max = _annex_a_temperature(
+        out, "theta_max", p.t_star_max_heating, p.theta_max,
+        label=phrase("Peak gas temperature, at t* = t*_max = {ts} (in the formula t* in h)",
+                     ts=t_star_max),
+        yields="theta_max" if peak_within else None)
+
+    # Cooling phase, eqs. (A.11) and (A.12).
+    ts_cool = p.t_star_max  # hours
+    if fuel:
+        t_star_c = out.step("t_star_max_c", "t_max_v * Gamma", {"t_max_v": t_vent,
+                                                                "Gamma": gamma},
+                            p.t_star_max * 3600.0, "s", display="h",
+                            label="t*_max of the cooling phase", source=f"{_ANNEX_A}, eq. (A.12)",
+                            symbols=symbols)
+        x = out.step("x", "t_lim * Gamma / t_star_max_c", {"t_lim": t_lim, "Gamma": gamma,
+                                                           "t_star_max_c": t_star_c},
+                     p.x, label="x of the cooling phase (fuel-controlled: t_max = t_lim)",
+                     source=f"{_ANNEX_A}, eq. (A.11)", symbols=symbols)
+    else:
+        t_star_c = t_star_max
+        x = Value(1.0, given=True)
+    rate_label = "Cooling rate r in θg = θmax − r (t* − t*_max x), in K per hour of t*"
+    if p.cooling_equation == "A.11b":
+        rate = out.step("r", "r_0 * (3 - t_star_max)",
+                        {"r_0": Value(250.0, "K", temperature=DIFFERENCE, given=True),
+                         "t_star_max": Value(ts_cool)}, p.cooling_rate, "K",
+                        temperature=DIFFERENCE, label=rate_label + " (0.5 h < t*_max < 2 h)",
+                        source=f"{_ANNEX_A}, eq. (A.11b)",
+                        symbols={**symbols, "r_0": r"250\,\mathrm{K}"})
+    else:
+        bound = ("t*_max = {ts} <= 0.5 h: eq. (A.11a), r = 625 K per hour of t*."
+                 if p.cooling_equation == "A.11a" else
+                 "t*_max = {ts} >= 2 h: eq. (A.11c), r = 250 K per hour of t*.")
+        rate = out.statement("r", bound, p.cooling_rate, "K", temperature=DIFFERENCE,
+                             values={"ts": t_star_c}, label=rate_label,
+                             source=f"{_ANNEX_A}, eq. ({p.cooling_equation})")
+
+    # The gas temperature at the end of the exposure: heating, cooling, or held at 20 °C.
+    t_end = _time(duration, True)
+    theta_end = curve(duration)
+    if not peak_within:
+        if fuel:  # the heating phase runs on Γ_lim (× k), eq. (A.8)
+            heat = {"t_end": t_end, **{k: v for k, v in operands.items() if k != "t_lim"}}
+            expr = "t_end * " + " * ".join(k for k in heat if k != "t_end")
+        else:
+            heat, expr = {"t_end": t_end, "Gamma": gamma}, "t_end * Gamma"
+        t_star_end = out.step("t_star_end", expr, heat, duration * p.gamma_heating, "s",
+                              display="h", label="Fictitious time at the end of the exposure",
+                              source=f"{_ANNEX_A}, eq. (A.2a)" if not fuel
+                              else f"{_ANNEX_A}, eq. (A.8)", symbols=symbols)
+        _annex_a_temperature(out, "theta_g", t_star_end.si / 3600.0, theta_end,
+                             label=phrase("Gas temperature at the end of the exposure, before "
+                                          "the peak, at t* = {ts} (in the formula t* in h)",
+                                          ts=t_star_end), yields="theta_end")
+        out.statement("theta_g_max", "The exposure ends before the peak (t_max = {t_max}): "
+                      "the highest temperature within it is the one at the end.", theta_end,
+                      values={"t_max": t_max}, yields="theta_max",
+                      label="Highest gas temperature within the exposure", source=_ANNEX_A)
+        out.statement("t_g_max", "The end of the exposure.", duration, yields="t_max",
+                      label="Time of the highest gas temperature within the exposure",
+                      source=_ANNEX_A)
+    elif duration < p.time_to_ambient:
+        t_star_end = out.step("t_star_end", "t_end * Gamma", {"t_end": t_end, "Gamma": gamma},
+                              duration * p.gamma, "s", display="h",
+                              label="Fictitious time at the end of the exposure (cooling uses Γ)",
+                              source=f"{_ANNEX_A}, eq. (A.11)", symbols=symbols)
+        out.step("theta_g", "theta_max - r * (t_star_end - t_star_max * x)",
+                 {"theta_max": theta_max, "r": rate, "t_star_end": Value(t_star_end.si / 3600.0),
+                  "t_star_max": Value(ts_cool), "x": x}, theta_end, "K",
+                 temperature=ABSOLUTE, yields="theta_end",
+                 label="Gas temperature at the end of the exposure, on the cooling line "
+                       "(in the formula t* in h)",
+                 source=f"{_ANNEX_A}, eq. ({p.cooling_equation})", symbols=symbols)
+    else:
+        out.statement("theta_g", "The cooling line reaches 20 °C at {t20}, within the exposure; "
+                      "the gas is then held at 20 °C.", theta_end, values={
+                          "t20": _time(p.time_to_ambient)}, yields="theta_end",
+                      label="Gas temperature at the end of the exposure",
+                      source=f"{_ANNEX_A}, eq. ({p.cooling_equation})")
+    out.note("Annex A of EN 1991-1-2 is informative: its use is subject to the National Annex. "
+             "The fire is " + p.regime + ". The compartment is taken to have no openings in "
+             "the roof, and the fire load to burn out completely (Annex A). Once the cooling "
+             "line reaches 20 °C (at {t20}) the gas is held at 20 °C.", _ANNEX_A,
+             t20=_time(p.time_to_ambient))
+
+
+def _tabulated_steps(curve: FireCurve, duration: float, out):
+    points = [p for p in curve.points if p[0] <= duration * (1 + 1e-12)]
+    theta_end = curve(duration)
+    at_point = math.isclose(points[-1][0], duration, rel_tol=1e-12)
+    if at_point:
+        out.statement("theta_g", "The point of the table at the end of the exposure, {t}.",
+                      theta_end, values={"t": _time(duration, True)}, yields="theta_end",
+                      label="Gas temperature at the end of the exposure", source=curve.source)
+    else:
+        (t_i, theta_i), (t_j, theta_j) = points[-1], curve.points[len(points)]
+        out.step("theta_g", "theta_i + (theta_j - theta_i) * (t_end - t_i) / (t_j - t_i)",
+                 {"theta_i": _kelvin(theta_i, True), "theta_j": _kelvin(theta_j, True),
+                  "t_i": _time(t_i, True), "t_j": _time(t_j, True),
+                  "t_end": _time(duration, True)}, theta_end, "K", temperature=ABSOLUTE,
+                 yields="theta_end", label="Gas temperature at the end of the exposure, "
+                                           "linear between the points either side",
+                 source=curve.source, symbols={"t_end": "t"})
+    candidates = points + [(duration, theta_end)]
+    t_max, theta_max = max(candidates, key=lambda p: (p[1], -p[0]))
+    if t_max == duration and not at_point:
+        text, when = ("The curve rises from its last point to the end of the exposure: it is "
+                      "highest at the end."), "The end of the exposure."
+    else:
+        text, when = ("The highest point of the table within the exposure (the curve is linear "
+                      "between its points)."), "The time of that point."
+    out.statement("theta_g_max", text, theta_max, yields="theta_max",
+                  label="Highest gas temperature", source=curve.source)
+    out.statement("t_g_max", when, t_max, yields="t_max",
+                  label="Time of the highest gas temperature", source=curve.source)
+    out.note("{n} points, linear interpolation between them; the curve is not extended outside "
+             "the table (a time beyond its last point is refused).", curve.source,
+             n=Value(float(len(curve.points)), given=True))
 
 
 def _compute_fire_curve(inp, out):
-    _curve_inputs_check(inp)
+    _check_curve_inputs(inp, out)
     curve = _build_curve(inp, out)
     duration = curve.duration
-    times = _series_times(curve, duration)
-    temperature = np.asarray(curve(times), dtype=float)
     if curve.name == "parametric":
-        _parametric_steps(curve, out)
+        _parametric_steps(curve, duration, out)
     elif curve.name in NAMED_FIRES:
         _nominal_steps(curve, duration, out)
     else:
-        out.note(f"{len(curve.points)} points, linear interpolation between them; the curve is "
-                 "not extended outside the table (a time beyond its last point is refused).",
-                 curve.source)
-    i_max = int(np.argmax(temperature))
-    out.result("theta_max", temperature[i_max])
-    out.result("t_max", times[i_max])
-    out.result("theta_end", temperature[-1])
-    out.note(f"Convection coefficient of this fire: "
-             f"{out.qt(curve.convection_coefficient, 'W/(m^2*K)')}; blocks heated by it use it "
-             "unless they set their own.", curve.source)
+        _tabulated_steps(curve, duration, out)
+    out.note("Convection coefficient of this fire: {alpha}; blocks heated by it use it unless "
+             "they set their own.", _convection_clause(curve),
+             alpha=Value(curve.convection_coefficient, "W/(m^2*K)", given=True))
+    times = _series_times(curve, duration)
+    temperature = np.asarray(curve(times), dtype=float)
     out.add_series("temperature", times, temperature, label=f"gas temperature ({curve.name})",
                    obj=curve)
-    out.figure_data["fire"] = {"time": times.tolist(), "temperature": temperature.tolist(),
-                               "name": curve.name, "t_max": curve.t_max, "duration": duration}
-
-
-def _figures_fire_curve(block):
-    from calcdoc.render.plots import LINE_STYLES, figure, mark_vertical, svg_of, thin
-    data = block.output.figure_data["fire"]
-    minutes = np.asarray(data["time"]) / 60.0
-    celsius = np.asarray(data["temperature"]) - 273.15
-    with figure(block.key + "-fire-curve") as (fig, ax):
-        ax.plot(*thin(minutes, celsius), color="#b03a2e", linestyle=LINE_STYLES[0],
-                label=f"gas temperature θg ({data['name']})")
-        if data["t_max"] is not None and data["t_max"] <= data["duration"]:
-            mark_vertical(ax, data["t_max"] / 60.0, "peak, t_max")
-        ax.set_xlabel("time t [min]")
-        ax.set_ylabel("gas temperature θg [°C]")
-        ax.set_xlim(0.0, data["duration"] / 60.0)
-        ax.set_ylim(bottom=0.0)
-        ax.legend(loc="lower right")
-        svg = svg_of(fig)
-    return [Figure(block.key + "-fire-curve", svg,
-                   f"Gas temperature–time curve ({data['name']}) of {block.key}")]
+    marks = ()
+    if curve.t_max is not None and curve.t_max <= duration:
+        marks = (Mark("x", float(curve.t_max), "peak, t_max", 3),)
+    out.figure(FigureData(
+        key=f"{out.block_key}-fire-curve",
+        caption=f"Gas temperature–time curve ({curve.name}) of {out.block_key}",
+        x=Axis("time t", "s", "min", (0.0, duration)),
+        y=Axis("gas temperature θg", "K", "degC",
+               (_KELVIN, _celsius_top(float(np.max(temperature))))),
+        lines=(Line(tuple(times.tolist()), tuple(temperature.tolist()),
+                    f"gas temperature θg ({curve.name})", 0),),
+        marks=marks, legend="lower right"))
 
 
 FIRE_CURVE = Kind(
@@ -468,9 +643,8 @@ FIRE_CURVE = Kind(
     summary="Gas temperature–time exposure: the nominal curves of EN 1991-1-2 §3.2, a tabulated "
             "curve, or the parametric fire of EN 1991-1-2 Annex A.",
     inputs=(
-        _LocatedChoice("curve", "the temperature-time curve",
-                       options=("standard", "external", "hydrocarbon", "tabulated",
-                                "parametric")),
+        Choice("curve", "the temperature-time curve",
+               options=("standard", "external", "hydrocarbon", "tabulated", "parametric")),
         Quantity("duration", "exposure duration (default 120 min; tabulated: the table's end)",
                  default=None, unit="s", greater_than=0.0, at_most=MAX_DURATION, display="min"),
         _PointsField("points", "tabulated curve: points [time, temperature]", default=None),
@@ -487,9 +661,9 @@ FIRE_CURVE = Kind(
         Quantity("thermal_inertia", "parametric: b = √(ρcλ) of the enclosure boundary "
                  "(EN 1991-1-2 Annex A: 100 to 2200 J/(m²·s^½·K))", default=None,
                  unit="J/(m^2*s^0.5*K)", at_least=100.0, at_most=2200.0),
-        _LocatedChoice("fire_growth", "parametric: fire growth rate, t_lim 25 / 20 / 15 min "
-                       "(EN 1991-1-2 Annex A; Annex E Table E.5)", default=None,
-                       options=("slow", "medium", "fast")),
+        Choice("fire_growth", "parametric: fire growth rate, t_lim 25 / 20 / 15 min "
+               "(EN 1991-1-2 Annex A; Annex E Table E.5)", default=None,
+               options=("slow", "medium", "fast")),
         Quantity("floor_area", "parametric: floor area of the compartment (EN 1991-1-2 "
                  "Annex A: at most 500 m²)", default=None, unit="m^2", greater_than=0.0,
                  at_most=500.0),
@@ -504,270 +678,314 @@ FIRE_CURVE = Kind(
                    temperature=ABSOLUTE),
     ),
     compute=_compute_fire_curve,
-    figures=_figures_fire_curve,
     caution=FIRE_CAUTION + " A fire curve is a model of exposure, not a prediction of a real "
             "fire: its choice and parameters (fire load, openings, linings) are for the "
             "engineer and the authority to accept for the compartment as built and used.",
+    # The physics functions' parameter names that are not the inputs' own.
+    input_names={"times": "points", "temperatures": "points", "t": "duration",
+                 "name": "curve"},
     references=("EN 1991-1-2:2002", "ISO 834-1:1999"),
 )
 
 
 # ----------------------------------------------------------------------------- steel heating
 
-_STEEL_NAMES = {
-    "section factor": "section_factor", "time step": "time_step",
-    "initial steel temperature": "initial_temperature", "shadow factor": "shadow_factor",
-    "member emissivity": "emissivity_member", "fire emissivity": "emissivity_fire",
-    "configuration factor": "configuration_factor",
-    "convection coefficient": "convection_coefficient",
-    "protection thickness": "protection.thickness",
-    "protection conductivity": "protection.conductivity",
-    "protection density": "protection.density",
-    "protection specific heat": "protection.specific_heat",
-    "degree of utilisation": "utilisation", "steel temperature": "duration",
-    "time of a tabulated fire": "duration",
+_UNPROTECTED_CLAUSE = "EN 1993-1-2:2005 §4.2.5.1"
+_PROTECTED_CLAUSE = "EN 1993-1-2:2005 §4.2.5.2"
+_STEEL_SYMBOLS = {
+    "theta_a_cr": r"\theta_{a,cr}", "A_m_V": "A_m/V", "A_p_V": "A_p/V",
+    "k_sh_A_m_V": r"k_{sh}\,A_m/V", "h_net": r"\dot h_{net}", "Delta_t": r"\Delta t",
+    "Delta_theta_a_t": r"\Delta\theta_{a,t}", "Delta_theta_g_t": r"\Delta\theta_{g,t}",
+    "theta_a": r"\theta_{a,t}", "theta_g": r"\theta_{g,t}", "theta_g_1": r"\theta_{g,t+\Delta t}",
+    "theta_a_1": r"\theta_{a,t+\Delta t}", "c_1": r"1\,\mathrm{J/(kg\cdot K)}",
+    "theta_482": r"482\,\mathrm{{}^{\circ}C}", "a": r"39.19\,\mathrm{K}",
+    "theta_a_max": r"\theta_{a,max}", "theta_a_req": r"\theta_{a,req}", "t_cr": "t_{cr}",
 }
 
-
-def _steel_error(exc: PhysicsRangeError) -> PhysicsRangeError:
-    quantity = str(exc.quantity)
-    for key, name in _STEEL_NAMES.items():
-        if quantity.startswith(key):
-            value = exc.value
-            if name in ("initial_temperature", "duration") and key != "time of a tabulated fire" \
-                    and isinstance(value, float):
-                value = f"{format_quantity(value, 'K', 'degC', 4)} ({quantity})"
-            elif key == "time of a tabulated fire" and isinstance(value, float):
-                value = format_quantity(value, "s", "min", 4)
-            return PhysicsRangeError(name, value, exc.expected)
-    return exc
+# EN 1993-1-2:2005 eqs. (3.2a)–(3.2c), θa a number of °C; c_1 = 1 J/(kg·K) carries the unit.
+_SPECIFIC_HEAT = (
+    (600.0, "(425 + 0.773 * theta_a - 0.00169 * theta_a ** 2 + 0.00000222 * theta_a ** 3) * c_1",
+     "eq. (3.2a)"),
+    (735.0, "(666 + 13002 / (738 - theta_a)) * c_1", "eq. (3.2b)"),
+    (900.0, "(545 + 17820 / (theta_a - 731)) * c_1", "eq. (3.2c)"),
+)
 
 
-def _representative_step(run, target: float | None, at: float | None) -> int:
-    """Index i of the step shown by hand: the one that crosses the target, else the one holding
-    the required time, else the one that ends at the highest steel temperature."""
-    if target is not None:
-        above = np.nonzero(run.temperature >= target)[0]
-        if above.size and above[0] > 0:
-            return int(above[0]) - 1
-    if at is not None:
-        return int(min(max(np.searchsorted(run.time, at, side="right") - 1, 0),
-                       run.time.size - 2))
-    return int(min(max(int(np.argmax(run.temperature)) - 1, 0), run.time.size - 2))
+def _critical_temperature(inp, out) -> Value:
+    if inp.critical_temperature is not None:
+        record = _record(out, "critical_temperature")
+        return out.statement("theta_a_cr", "As stated in the inputs, with its source.",
+                             inp.critical_temperature, yields="theta_critical",
+                             label="Critical temperature",
+                             source=(record.source if record else "") or "stated input",
+                             symbols=_STEEL_SYMBOLS)
+    theta_cr = critical_temperature_from_utilisation(inp.utilisation)
+    value = out.step("theta_a_cr", "theta_482 + a * log(1 / (0.9674 * mu_0 ** 3.833) - 1)",
+                     {"theta_482": _kelvin(482.0 + _KELVIN, True),
+                      "a": Value(39.19, "K", temperature=DIFFERENCE, given=True),
+                      "mu_0": out.input("utilisation")}, theta_cr, yields="theta_critical",
+                     label="Critical temperature from the degree of utilisation (log is the "
+                           "natural logarithm)",
+                     source="EN 1993-1-2:2005 §4.2.4, eq. (4.22)", symbols=_STEEL_SYMBOLS)
+    out.warn("θa,cr from μ0 by eq. (4.22) is valid only where deformation criteria and "
+             "stability do not govern: not for columns, nor for beams prone to "
+             "lateral-torsional buckling, which need a critical temperature from their own "
+             "buckling check. The engineer confirms that this member is neither.",
+             "EN 1993-1-2:2005 §4.2.4")
+    return value
 
 
-def _unprotected_steps(inp, out, run, i, alpha):
-    t_i, dt = run.time[i], run.time[i + 1] - run.time[i]
-    theta_g, theta_a = run.gas_temperature[i], run.temperature[i]
+def _specific_heat_step(out, theta_a: float) -> Value:
+    """Record c_a at the start of the first step (EN 1993-1-2:2005 §3.4.1.2)."""
     c_a = specific_heat_carbon_steel(theta_a)
-    h_net = net_heat_flux(theta_g, theta_a, alpha, inp.emissivity_member, inp.emissivity_fire,
-                          inp.configuration_factor)
-    delta = unprotected_temperature_increment(theta_g, theta_a, inp.section_factor, alpha, dt,
-                                              inp.shadow_factor, inp.emissivity_member,
+    celsius = theta_a - _KELVIN
+    label = phrase("Specific heat of the steel at θa,t = {theta} (in the formula θa in °C)",
+                   theta=_kelvin(theta_a))
+    for upper, expr, equation in _SPECIFIC_HEAT:
+        if celsius < upper:
+            return out.step("c_a", expr, {"theta_a": Value(celsius, given=True),
+                                          "c_1": Value(1.0, "J/(kg*K)", given=True)},
+                            c_a, "J/(kg*K)", label=label,
+                            source=f"EN 1993-1-2:2005 §3.4.1.2, {equation}",
+                            symbols={"c_1": _STEEL_SYMBOLS["c_1"]})
+    return out.statement("c_a", "Constant from 900 °C to 1200 °C.", c_a, "J/(kg*K)",
+                         label=label, source="EN 1993-1-2:2005 §3.4.1.2, eq. (3.2d)")
+
+
+def _first_step_common(out, run):
+    """Return the operands of the first explicit step: θa,t, θg,t, Δt."""
+    theta_a = _operand(out, "initial_temperature", float(run.temperature[0]), "K",
+                       temperature=ABSOLUTE)
+    theta_g = _kelvin(run.gas_temperature[0])
+    dt = float(run.time[1] - run.time[0])
+    return theta_a, theta_g, _operand(out, "time_step", dt, "s")
+
+
+def _unprotected_first_step(inp, out, run, alpha: float):
+    theta_a, theta_g, dt = _first_step_common(out, run)
+    c_a = _specific_heat_step(out, theta_a.si)
+    factor = out.step("k_sh_A_m_V", "k_sh * A_m_V",
+                      {"k_sh": out.input("shadow_factor"), "A_m_V": out.input("section_factor")},
+                      inp.shadow_factor * inp.section_factor, "1/m",
+                      label="Section factor with the shadow effect",
+                      source=f"{_UNPROTECTED_CLAUSE}, eq. (4.25)", symbols=_STEEL_SYMBOLS)
+    h_net = net_heat_flux(theta_g.si, theta_a.si, alpha, inp.emissivity_member,
+                          inp.emissivity_fire, inp.configuration_factor)
+    h_net = out.step(
+        "h_net", "alpha_c * (theta_g - theta_a) + Phi * epsilon_m * epsilon_f * sigma * "
+                 "(theta_g ** 4 - theta_a ** 4)",
+        {"alpha_c": _operand(out, "convection_coefficient", alpha, "W/(m^2*K)"),
+         "theta_g": theta_g, "theta_a": theta_a,
+         "Phi": out.input("configuration_factor"), "epsilon_m": out.input("emissivity_member"),
+         "epsilon_f": out.input("emissivity_fire")}, h_net, "W/m^2",
+        label=phrase("Net heat flux into the member at the start of the first step, t = {t}, "
+                     "θg from the fire's curve", t=_time(run.time[0], True)),
+        source="EN 1991-1-2:2002 §3.1, eqs. (3.1)–(3.3)", symbols=_STEEL_SYMBOLS)
+    delta = unprotected_temperature_increment(theta_g.si, theta_a.si, inp.section_factor, alpha,
+                                              dt.si, inp.shadow_factor, inp.emissivity_member,
                                               inp.emissivity_fire, inp.configuration_factor)
-    when = f"step from t = {out.qt(t_i, 's', 'min')} (θg = {out.qt(theta_g, 'K', 'degC')}, " \
-           f"θa = {out.qt(theta_a, 'K', 'degC')})"
-    out.step(r"c_a", r"c_a(\theta_{a,t})", rf"c_a({out.q(theta_a, 'K', 'degC')})", c_a,
-             "J/(kg*K)", label=f"Specific heat of steel, {when}",
-             source="EN 1993-1-2:2005 §3.4.1.2, eq. (3.2)")
-    out.step(r"\dot h_{net}",
-             r"\alpha_c(\theta_g - \theta_a) + \Phi\,\varepsilon_m\varepsilon_f\,\sigma"
-             r"\left[(\theta_g + 273)^4 - (\theta_a + 273)^4\right]",
-             rf"{out.q(alpha, 'W/(m^2*K)')}\,({out.q(theta_g, 'K')} - {out.q(theta_a, 'K')})"
-             rf" + {out.q(inp.configuration_factor, '1')} \cdot "
-             rf"{out.q(inp.emissivity_member, '1')} \cdot {out.q(inp.emissivity_fire, '1')}"
-             rf" \cdot \sigma\,\left[({out.q(theta_g, 'K')})^4 - ({out.q(theta_a, 'K')})^4\right]",
-             h_net, "W/m^2", label="Net heat flux at the start of the step (θ + 273 taken "
-                                   "as the kelvin temperature)",
-             source="EN 1991-1-2:2002 §3.1, eqs. (3.1)–(3.3)")
-    out.step(r"\Delta\theta_{a,t}",
-             r"k_{sh}\,\frac{A_m/V}{c_a\,\rho_a}\,\dot h_{net}\,\Delta t",
-             rf"{out.q(inp.shadow_factor, '1')} \cdot \frac{{{out.q(inp.section_factor, '1/m')}}}"
-             rf"{{{out.q(c_a, 'J/(kg*K)')} \cdot {out.q(STEEL_DENSITY, 'kg/m^3')}}} \cdot "
-             rf"{out.q(h_net, 'W/m^2')} \cdot {out.q(dt, 's')}", delta, "K",
-             label="Rise of the steel temperature in the step",
-             source="EN 1993-1-2:2005 §4.2.5.1, eq. (4.25)")
+    delta = out.step("Delta_theta_a_t", "k_sh_A_m_V / (c_a * rho_a) * h_net * Delta_t",
+                     {"k_sh_A_m_V": factor, "c_a": c_a,
+                      "rho_a": Value(STEEL_DENSITY, "kg/m^3", given=True), "h_net": h_net,
+                      "Delta_t": dt}, delta, "K", temperature=DIFFERENCE,
+                     label="Rise of the steel temperature in the first step",
+                     source=f"{_UNPROTECTED_CLAUSE}, eq. (4.25)", symbols=_STEEL_SYMBOLS)
+    _next_temperature(out, run, theta_a, delta, _UNPROTECTED_CLAUSE)
 
 
-def _protected_steps(inp, out, run, i, protection):
-    t_i, dt = run.time[i], run.time[i + 1] - run.time[i]
-    theta_g, theta_g1 = run.gas_temperature[i], run.gas_temperature[i + 1]
-    theta_a = run.temperature[i]
-    c_a = specific_heat_carbon_steel(theta_a)
-    d_p, lam, rho_p, c_p = (protection["thickness"], protection["conductivity"],
-                            protection["density"], protection["specific_heat"])
-    phi = protection_capacity_ratio(inp.section_factor, d_p, rho_p, c_p, c_a)
-    delta = protected_temperature_increment(theta_g, theta_g1, theta_a, inp.section_factor, d_p,
-                                            lam, rho_p, c_p, dt)
-    when = f"step from t = {out.qt(t_i, 's', 'min')} (θg = {out.qt(theta_g, 'K', 'degC')}, " \
-           f"θa = {out.qt(theta_a, 'K', 'degC')})"
-    out.step(r"c_a", r"c_a(\theta_{a,t})", rf"c_a({out.q(theta_a, 'K', 'degC')})", c_a,
-             "J/(kg*K)", label=f"Specific heat of steel, {when}",
-             source="EN 1993-1-2:2005 §3.4.1.2, eq. (3.2)")
-    out.step(r"\phi", r"\frac{c_p\,\rho_p}{c_a\,\rho_a}\,d_p\,\frac{A_p}{V}",
-             rf"\frac{{{out.q(c_p, 'J/(kg*K)')} \cdot {out.q(rho_p, 'kg/m^3')}}}"
-             rf"{{{out.q(c_a, 'J/(kg*K)')} \cdot {out.q(STEEL_DENSITY, 'kg/m^3')}}} \cdot "
-             rf"{out.q(d_p, 'm', 'mm')} \cdot {out.q(inp.section_factor, '1/m')}", phi, "1",
-             label="Heat capacity of the protection relative to the steel",
-             source="EN 1993-1-2:2005 §4.2.5.2, eq. (4.28)")
-    out.step(r"\Delta\theta_{a,t}",
-             r"\frac{\lambda_p\,A_p/V\,(\theta_{g,t} - \theta_{a,t})}{d_p\,c_a\,\rho_a\,"
-             r"(1 + \phi/3)}\,\Delta t - (e^{\phi/10} - 1)\,\Delta\theta_{g,t}",
-             rf"\frac{{{out.q(lam, 'W/(m*K)')} \cdot {out.q(inp.section_factor, '1/m')} \cdot "
-             rf"({out.q(theta_g, 'K')} - {out.q(theta_a, 'K')})}}{{{out.q(d_p, 'm', 'mm')} \cdot "
-             rf"{out.q(c_a, 'J/(kg*K)')} \cdot {out.q(STEEL_DENSITY, 'kg/m^3')} \cdot "
-             rf"(1 + {out.q(phi, '1')}/3)}} \cdot {out.q(dt, 's')} - "
-             rf"(e^{{{out.q(phi, '1')}/10}} - 1) \cdot {out.q(theta_g1 - theta_g, 'K')}",
-             delta, "K", label="Rise of the steel temperature in the step (Δθg = θg(t+Δt) − "
-                               "θg(t); Δθa ≥ 0 while Δθg > 0)",
-             source="EN 1993-1-2:2005 §4.2.5.2, eq. (4.27)")
+def _protected_first_step(inp, out, run, protection: dict):
+    theta_a, theta_g, dt = _first_step_common(out, run)
+    theta_g_1 = _kelvin(run.gas_temperature[1])
+    c_a = _specific_heat_step(out, theta_a.si)
+    material = protection["material"] is not None  # its properties are library values
+    thickness = out.input("protection.thickness")
+
+    def prop(key, unit):
+        si = float(protection[key])
+        return Value(si, unit, given=True) if material else _operand(out, f"protection.{key}",
+                                                                     si, unit)
+    lambda_p, rho_p, c_p = (prop("conductivity", "W/(m*K)"), prop("density", "kg/m^3"),
+                            prop("specific_heat", "J/(kg*K)"))
+    a_p_v = out.input("section_factor")
+    rho_a = Value(STEEL_DENSITY, "kg/m^3", given=True)
+    phi = out.step("phi", "c_p * rho_p / (c_a * rho_a) * d_p * A_p_V",
+                   {"c_p": c_p, "rho_p": rho_p, "c_a": c_a, "rho_a": rho_a, "d_p": thickness,
+                    "A_p_V": a_p_v},
+                   protection_capacity_ratio(inp.section_factor, thickness.si, rho_p.si, c_p.si,
+                                             c_a.si), label="Heat capacity of the protection "
+                                                            "relative to the steel",
+                   source=f"{_PROTECTED_CLAUSE}, eq. (4.28)", symbols=_STEEL_SYMBOLS)
+    delta_g = out.step("Delta_theta_g_t", "theta_g_1 - theta_g",
+                       {"theta_g_1": theta_g_1, "theta_g": theta_g},
+                       theta_g_1.si - theta_g.si, "K", temperature=DIFFERENCE,
+                       label=phrase("Rise of the gas temperature over the first step, from "
+                                    "t = {t0} to {t1}, θg from the fire's curve",
+                                    t0=_time(run.time[0], True), t1=_time(run.time[1], True)),
+                       source=f"{_PROTECTED_CLAUSE}, eq. (4.27)", symbols=_STEEL_SYMBOLS)
+    raw = protected_temperature_increment(theta_g.si, theta_g_1.si, theta_a.si,
+                                          inp.section_factor, thickness.si, lambda_p.si,
+                                          rho_p.si, c_p.si, dt.si, no_fall_while_heating=False)
+    delta = out.step(
+        "Delta_theta_a_t", "lambda_p * A_p_V * (theta_g - theta_a) / (d_p * c_a * rho_a * "
+                           "(1 + phi / 3)) * Delta_t - (exp(phi / 10) - 1) * Delta_theta_g_t",
+        {"lambda_p": lambda_p, "A_p_V": a_p_v, "theta_g": theta_g, "theta_a": theta_a,
+         "d_p": thickness, "c_a": c_a, "rho_a": rho_a, "phi": phi, "Delta_t": dt,
+         "Delta_theta_g_t": delta_g}, raw, "K", temperature=DIFFERENCE,
+        label="Rise of the steel temperature in the first step, by the formula",
+        source=f"{_PROTECTED_CLAUSE}, eq. (4.27)", symbols=_STEEL_SYMBOLS)
+    if delta_g.si > 0.0 and raw < 0.0:
+        delta = out.statement("Delta_theta_a_t", "The gas heats (Δθg,t > 0) while the formula "
+                              "gives a fall: eq. (4.27) requires Δθa,t ≥ 0, so the rise is 0.",
+                              0.0, "K", temperature=DIFFERENCE,
+                              label="Rise of the steel temperature in the first step",
+                              source=f"{_PROTECTED_CLAUSE}, eq. (4.27)", symbols=_STEEL_SYMBOLS)
+    _next_temperature(out, run, theta_a, delta, _PROTECTED_CLAUSE)
+
+
+def _next_temperature(out, run, theta_a: Value, delta: Value, clause: str):
+    out.step("theta_a_1", "theta_a + Delta_theta_a_t",
+             {"theta_a": theta_a, "Delta_theta_a_t": delta}, float(run.temperature[1]), "K",
+             temperature=ABSOLUTE,
+             label=phrase("Steel temperature at the end of the first step, t = {t}; every "
+                          "later step repeats this working from the state it starts in",
+                          t=_time(run.time[1], True)),
+             source=clause, symbols=_STEEL_SYMBOLS)
+
+
+def _between(run, j: int) -> dict:
+    """The two steps either side of a crossing, as phrase values."""
+    return {"t_i": _time(run.time[j - 1]), "theta_i": _kelvin(run.temperature[j - 1]),
+            "t_j": _time(run.time[j]), "theta_j": _kelvin(run.temperature[j])}
+
+
+def _stepped_results(inp, out, run, theta_cr: float, duration: float, clause: str):
+    t_cr = time_to_temperature(run.time, run.temperature, theta_cr)
+    if t_cr is None:
+        out.not_reached("time_to_critical", "not reached in {d}", d=_time(duration))
+    else:
+        j = int(np.nonzero(run.temperature >= theta_cr)[0][0])
+        if j == 0:
+            out.statement("t_cr", "The steel starts at or above the critical temperature.",
+                          t_cr, yields="time_to_critical", symbols=_STEEL_SYMBOLS,
+                          label="Time to the critical temperature", source=clause)
+        else:
+            out.statement("t_cr", "The steel reaches θa,cr between the step at {t_i} ({theta_i}) "
+                          "and the step at {t_j} ({theta_j}); the time is found by linear "
+                          "interpolation between them.", t_cr, values=_between(run, j),
+                          yields="time_to_critical", label="Time to the critical temperature",
+                          source=clause, symbols=_STEEL_SYMBOLS)
+    if inp.required_resistance is not None:
+        at = float(inp.required_resistance)
+        theta = temperature_at_time(run.time, run.temperature, at)
+        j = int(min(max(np.searchsorted(run.time, at, side="left"), 1), run.time.size - 1))
+        if math.isclose(run.time[j], at, rel_tol=1e-12):
+            text, values = "The stepped solution at the step at {t}.", {"t": _time(at)}
+        else:
+            text = ("The stepped solution at {t}, by linear interpolation between the step at "
+                    "{t_i} ({theta_i}) and the step at {t_j} ({theta_j}).")
+            values = {"t": out.input("required_resistance"), **_between(run, j)}
+        out.statement("theta_a_req", text, theta, values=values, yields="theta_at_required",
+                      label="Steel temperature at the required period", source=clause,
+                      symbols=_STEEL_SYMBOLS)
+    i_max = int(np.argmax(run.temperature))
+    where = ("at the end of the exposure, {t}." if i_max == run.time.size - 1 else "at {t}.")
+    out.statement("theta_a_max", "The highest temperature of the stepped solution, reached "
+                  + where, run.theta_max, values={"t": _time(run.time[i_max])},
+                  yields="theta_max", label="Highest steel temperature", source=clause,
+                  symbols=_STEEL_SYMBOLS)
+    return t_cr
 
 
 def _compute_steel(inp, out):
     fire: FireCurve = inp.fire
     duration = exposure_duration(inp.duration, fire)
     if inp.duration is None:
-        out.note(f"Duration {out.qt(duration, 's', 'min')}: the fire's.", fire.source)
+        out.note("Duration {d}: the fire's.", _curve_clause(fire), d=_time(duration, True))
     if inp.required_resistance is not None and inp.required_resistance > duration * (1 + 1e-12):
-        raise PhysicsRangeError(
-            "required_resistance", format_quantity(inp.required_resistance, "s", "min", 4),
-            f"a required period within the duration ({format_quantity(duration, 's', 'min', 4)})")
+        written = _record(out, "duration")
+        raise _input_error(out, "required_resistance", "outside the range of the method",
+                           "a required period within the duration ("
+                           + (written.written if written else "the fire's") + ")", "")
     alpha = fire_convection(inp.convection_coefficient, fire)
     protection = inp.protection
     protected = protection is not None
+    clause = _PROTECTED_CLAUSE if protected else _UNPROTECTED_CLAUSE
 
-    # Critical temperature: stated, or eq. (4.22) where §4.2.4 allows it.
-    if inp.critical_temperature is not None:
-        theta_cr = float(inp.critical_temperature)
-        out.step(r"\theta_{a,cr}", r"\theta_{a,cr}", out.q(theta_cr, "K", "degC"), theta_cr, "K",
-                 label="Critical temperature, as stated with its source (input table)",
-                 source="stated input", display_unit="degC")
-    else:
-        mu0 = float(inp.utilisation)
-        try:
-            theta_cr = critical_temperature_from_utilisation(mu0)
-        except PhysicsRangeError as exc:
-            raise _steel_error(exc) from None
-        out.step(r"\theta_{a,cr}",
-                 r"39.19\,\ln\left[\frac{1}{0.9674\,\mu_0^{3.833}} - 1\right] + 482",
-                 rf"39.19\,\ln\left[\frac{{1}}{{0.9674 \cdot {out.q(mu0, '1')}^{{3.833}}}} - 1"
-                 r"\right] + 482", theta_cr, "K",
-                 label="Critical temperature from the degree of utilisation (θ in °C)",
-                 source="EN 1993-1-2:2005 §4.2.4, eq. (4.22)", display_unit="degC")
-        out.warn("θa,cr from μ0 by eq. (4.22) is valid only where deformation criteria and "
-                 "stability do not govern: not for columns, nor for beams prone to "
-                 "lateral-torsional buckling, which need a critical temperature from their own "
-                 "buckling check. The engineer confirms that this member is neither.",
-                 "EN 1993-1-2:2005 §4.2.4")
-
-    try:
-        if protected:
-            time_step = inp.time_step if inp.time_step is not None else PROTECTED_MAX_TIME_STEP
-            run = protected_steel_heating(fire, duration, inp.section_factor,
-                                          protection["thickness"], protection["conductivity"],
-                                          protection["density"], protection["specific_heat"],
-                                          time_step, inp.initial_temperature)
-        else:
-            time_step = inp.time_step if inp.time_step is not None else UNPROTECTED_MAX_TIME_STEP
-            run = unprotected_steel_heating(fire, duration, inp.section_factor, alpha,
-                                            inp.shadow_factor, inp.emissivity_member,
-                                            inp.emissivity_fire, inp.configuration_factor,
-                                            time_step, inp.initial_temperature)
-    except PhysicsRangeError as exc:
-        raise _steel_error(exc) from None
-
-    t_cr = time_to_temperature(run.time, run.temperature, theta_cr)
-    i = _representative_step(run, theta_cr, inp.required_resistance)
+    theta_cr = _critical_temperature(inp, out).si
     if protected:
-        _protected_steps(inp, out, run, i, protection)
+        time_step = inp.time_step if inp.time_step is not None else PROTECTED_MAX_TIME_STEP
+        run = protected_steel_heating(fire, duration, inp.section_factor,
+                                      protection["thickness"], protection["conductivity"],
+                                      protection["density"], protection["specific_heat"],
+                                      time_step, inp.initial_temperature)
+        _protected_first_step(inp, out, run, protection)
     else:
-        _unprotected_steps(inp, out, run, i, alpha)
-
-    out.result("theta_critical", theta_cr)
+        time_step = inp.time_step if inp.time_step is not None else UNPROTECTED_MAX_TIME_STEP
+        run = unprotected_steel_heating(fire, duration, inp.section_factor, alpha,
+                                        inp.shadow_factor, inp.emissivity_member,
+                                        inp.emissivity_fire, inp.configuration_factor,
+                                        time_step, inp.initial_temperature)
+        _unprotected_first_step(inp, out, run, alpha)
     out.simulated_until = duration
-    if t_cr is None:
-        out.not_reached("time_to_critical", f"not reached in {out.qt(duration, 's', 'min')}")
-    else:
-        j = int(np.nonzero(run.temperature >= theta_cr)[0][0])
-        if j > 0:
-            out.step(r"t_{cr}", r"t_i + \Delta t\,\frac{\theta_{a,cr} - \theta_{a,i}}"
-                                r"{\theta_{a,i+1} - \theta_{a,i}}",
-                     rf"{out.q(run.time[j - 1], 's', 'min')} + {out.q(run.time[j] - run.time[j - 1], 's')}"
-                     rf"\,\frac{{{out.q(theta_cr, 'K')} - {out.q(run.temperature[j - 1], 'K')}}}"
-                     rf"{{{out.q(run.temperature[j], 'K')} - {out.q(run.temperature[j - 1], 'K')}}}",
-                     t_cr, "s", label="Time to the critical temperature, linear between steps",
-                     source="FORMAT.md, steel_member_heating", display_unit="min")
-        out.result("time_to_critical", t_cr)
-    if inp.required_resistance is not None:
-        out.result("theta_at_required",
-                   temperature_at_time(run.time, run.temperature, inp.required_resistance))
-    out.result("theta_max", run.theta_max)
+    t_cr = _stepped_results(inp, out, run, theta_cr, duration, clause)
 
     method = ("eq. (4.27), protected member" if protected else
               "eq. (4.25), unprotected member")
-    out.note(f"Explicit steps of EN 1993-1-2:2005 {method}: Δt = {out.qt(time_step, 's')} "
-             f"({run.time.size - 1} steps to {out.qt(duration, 's', 'min')}), "
+    out.note("Explicit steps of EN 1993-1-2:2005 " + method + ": Δt = {dt} ({n} steps to {d}); "
              + ("θg, c_a and φ taken at the start of each step, Δθg = θg(t+Δt) − θg(t)"
                 if protected else "θg, c_a and the net heat flux taken at the start of each step")
-             + "; times between steps by linear interpolation. Steel density 7850 kg/m³ "
-               "(§3.2.2), c_a(θ) of §3.4.1.2.",
-             "EN 1993-1-2:2005 §4.2.5.2" if protected else "EN 1993-1-2:2005 §4.2.5.1")
+             + "; times between steps by linear interpolation. Steel density {rho} (§3.2.2), "
+               "c_a(θ) of §3.4.1.2.", clause, dt=Value(time_step, "s", given=True),
+             n=Value(float(run.time.size - 1), given=True), d=_time(duration, True),
+             rho=Value(STEEL_DENSITY, "kg/m^3", given=True))
     if inp.time_step is None:
-        out.note(f"Time step {out.qt(time_step, 's')}: the clause's upper limit.",
-                 "EN 1993-1-2:2005 §4.2.5.2" if protected else "EN 1993-1-2:2005 §4.2.5.1")
+        out.note("Time step {dt}: the clause's upper limit.", clause,
+                 dt=Value(time_step, "s", given=True))
     if protected:
         if run.zero_rise_steps:
-            out.note(f"The rule Δθa,t ≥ 0 while Δθg,t > 0 set the rise to zero in "
-                     f"{run.zero_rise_steps} step(s).", "EN 1993-1-2:2005 §4.2.5.2, eq. (4.27)")
+            out.note("The rule Δθa,t ≥ 0 while Δθg,t > 0 set the rise to zero in {n} step(s).",
+                     f"{_PROTECTED_CLAUSE}, eq. (4.27)",
+                     n=Value(float(run.zero_rise_steps), given=True))
         out.note("The protection is taken at the gas temperature on its fire side (eq. (4.27) "
                  "has no film coefficient), with constant properties; its moisture (a delay "
                  "near 100 °C) is not counted, which errs on the safe side. Shadow factor, "
                  "emissivities and convection coefficient do not enter eq. (4.27). Protection "
                  "properties are to be taken from the product's assessment (EN 13381-4).",
-                 protection.get("source") or "EN 1993-1-2:2005 §4.2.5.2")
+                 protection.get("source") or _PROTECTED_CLAUSE)
     else:
-        source = ("the fire's own" if inp.convection_coefficient is None else "set in this block")
-        out.note(f"Convection coefficient αc = {out.qt(alpha, 'W/(m^2*K)')} ({source}); "
-                 f"configuration factor Φ = {out.qt(inp.configuration_factor, '1')}, radiation "
-                 "temperature taken equal to the gas temperature (member fully engulfed).",
-                 fire.source if inp.convection_coefficient is None else
-                 "EN 1991-1-2:2002 §3.1")
+        own = inp.convection_coefficient is None
+        out.note("Convection coefficient αc = {alpha} (" + ("the fire's own" if own else
+                                                             "set in this block")
+                 + "); configuration factor Φ = {phi}, radiation temperature taken equal to the "
+                   "gas temperature (member fully engulfed).",
+                 _convection_clause(fire) if own else "EN 1991-1-2:2002 §3.1",
+                 alpha=_operand(out, "convection_coefficient", alpha, "W/(m^2*K)"),
+                 phi=out.input("configuration_factor"))
     out.add_series("temperature", run.time, run.temperature, label="steel temperature")
-    out.figure_data["steel"] = {
-        "time": run.time.tolist(), "steel": run.temperature.tolist(),
-        "gas": run.gas_temperature.tolist(), "theta_critical": theta_cr,
-        "required": inp.required_resistance, "time_to_critical": t_cr, "duration": duration,
-        "fire": fire.name, "protected": protected}
+    _steel_figure(inp, out, run, fire, theta_cr, t_cr, duration, protected)
 
 
-def _figures_steel(block):
-    from calcdoc.render.plots import (LINE_STYLES, figure, mark_horizontal, mark_vertical,
-                                      svg_of, thin)
-    data = block.output.figure_data["steel"]
-    minutes = np.asarray(data["time"]) / 60.0
-    with figure(block.key + "-steel") as (fig, ax):
-        ax.plot(*thin(minutes, np.asarray(data["gas"]) - 273.15), color="#b03a2e",
-                linestyle=LINE_STYLES[0], label=f"gas θg ({data['fire']})")
-        ax.plot(*thin(minutes, np.asarray(data["steel"]) - 273.15), color="#1f3b73",
-                linestyle=LINE_STYLES[1], label="steel θa"
-                + (" (protected)" if data["protected"] else " (unprotected)"))
-        mark_horizontal(ax, data["theta_critical"] - 273.15,
-                        f"critical θa,cr = {data['theta_critical'] - 273.15:.0f} °C")
-        if data["required"] is not None:
-            mark_vertical(ax, data["required"] / 60.0,
-                          f"required {data['required'] / 60.0:.0f} min")
-        if data["time_to_critical"] is not None:
-            ax.plot([data["time_to_critical"] / 60.0], [data["theta_critical"] - 273.15],
-                    marker="o", color="#000000", linestyle="none", label="time to θa,cr")
-        ax.set_xlabel("time t [min]")
-        ax.set_ylabel("temperature [°C]")
-        ax.set_xlim(0.0, data["duration"] / 60.0)
-        ax.set_ylim(bottom=0.0)
-        ax.legend(loc="lower right")
-        svg = svg_of(fig)
-    return [Figure(block.key + "-steel", svg,
-                   f"Gas and steel temperatures of {block.key}, with the critical temperature"
-                   + (" and the required period" if data["required"] is not None else ""))]
+def _steel_figure(inp, out, run, fire, theta_cr, t_cr, duration, protected):
+    marks = [Mark("y", theta_cr, "critical temperature θa,cr", 1)]
+    values = {"cr": _kelvin(theta_cr)}
+    caption = "Gas and steel temperatures of " + out.block_key + ", with the critical " \
+              "temperature θa,cr = {cr}"
+    if inp.required_resistance is not None:
+        marks.append(Mark("x", float(inp.required_resistance), "required period", 3))
+        values["req"] = out.input("required_resistance")
+        caption += " and the required period {req}"
+    points = (Point(float(t_cr), theta_cr, "reaches θa,cr"),) if t_cr is not None else ()
+    highest = max(float(np.max(run.gas_temperature)), float(np.max(run.temperature)), theta_cr)
+    out.figure(FigureData(
+        key=f"{out.block_key}-steel",
+        caption=Phrase(caption, values),
+        x=Axis("time t", "s", "min", (0.0, duration)),
+        y=Axis("temperature", "K", "degC", (_KELVIN, _celsius_top(highest))),
+        lines=(Line(tuple(run.time.tolist()), tuple(run.temperature.tolist()),
+                    "steel θa (" + ("protected" if protected else "unprotected") + ")", 0),
+               Line(tuple(run.time.tolist()), tuple(run.gas_temperature.tolist()),
+                    f"gas θg ({fire.name})", 1)),
+        marks=tuple(marks), points=points, legend="lower right"))
 
 
 _PROTECTION_FIELDS = (
@@ -833,11 +1051,18 @@ STEEL_MEMBER_HEATING = Kind(
                    temperature=ABSOLUTE),
     ),
     compute=_compute_steel,
-    figures=_figures_steel,
     exactly_one=(("critical_temperature", "utilisation"),),
     caution=FIRE_CAUTION + " The lumped method gives one uniform steel temperature; the "
             "critical temperature, the section factor and the protection product's assessed "
             "properties are the engineer's to confirm.",
+    # The physics functions' parameter names that are not the inputs' own: the protection's
+    # properties, a fire evaluated beyond its table (t), the required period (at), the fire.
+    input_names={"protection_thickness": "protection.thickness",
+                 "protection_conductivity": "protection.conductivity",
+                 "protection_density": "protection.density",
+                 "protection_specific_heat": "protection.specific_heat",
+                 "t": "duration", "at": "required_resistance", "gas_temperature": "fire",
+                 "gas_temperature_next": "fire"},
     references=("EN 1993-1-2:2005", "EN 1991-1-2:2002", "EN 13381-4"),
 )
 

@@ -136,10 +136,9 @@ class FireCurve:
         """Return the gas temperature [K] at time(s) t [s] (a float for a scalar, else an array)."""
         times = np.asarray(t, dtype=float)
         if times.size and not np.all(np.isfinite(times)):
-            raise PhysicsRangeError("time t [s]", _worst(times, ~np.isfinite(times)),
-                                    "finite times")
+            raise PhysicsRangeError("t", _worst(times, ~np.isfinite(times)), "finite times")
         if times.size and np.min(times) < 0.0:
-            raise PhysicsRangeError("time t [s]", float(np.min(times)), "t >= 0 s")
+            raise PhysicsRangeError("t", float(np.min(times)), "t >= 0 s")
         result = self.temperature_function(times)
         if np.ndim(result) == 0:
             return float(result)
@@ -177,14 +176,14 @@ def _worst(values: np.ndarray, mask: np.ndarray) -> float:
 def _check_duration(duration: float) -> float:
     duration = float(duration)
     if not (math.isfinite(duration) and duration > 0.0):
-        raise PhysicsRangeError("duration [s]", duration, "a finite duration > 0 s")
+        raise PhysicsRangeError("duration", duration, "a finite duration > 0 s")
     return duration
 
 
 def _check_convection(alpha: float) -> float:
     alpha = float(alpha)
     if not (math.isfinite(alpha) and alpha > 0.0):
-        raise PhysicsRangeError("convection coefficient αc [W/(m²·K)]", alpha, "αc > 0 W/(m²·K)")
+        raise PhysicsRangeError("convection_coefficient", alpha, "αc > 0 W/(m²·K)")
     return alpha
 
 
@@ -444,14 +443,15 @@ def named_fire(name: str, duration: float = DEFAULT_DURATION) -> FireCurve:
     try:
         constructor = NAMED_FIRES[name]
     except KeyError:
-        raise PhysicsRangeError("named fire curve", name, " | ".join(NAMED_FIRES)) from None
+        raise PhysicsRangeError("name", name, " | ".join(NAMED_FIRES)) from None
     return constructor(duration)
 
 
 # --- tabulated curve ---------------------------------------------------------------------------
 
 def tabulated_fire(times, temperatures, convection_coefficient: float,
-                   source: str = "tabulated by the user") -> FireCurve:
+                   source: str = "tabulated by the user",
+                   duration: float | None = None) -> FireCurve:
     r"""Return a :class:`FireCurve` through the given points, linear between them.
 
     .. math::
@@ -469,11 +469,14 @@ def tabulated_fire(times, temperatures, convection_coefficient: float,
         so it must be stated.
     source : str
         Where the points come from, printed with the curve.
+    duration : float or None
+        Exposure duration [s], > 0 and at most the last time of the table; None: the last time
+        of the table.
 
     Returns
     -------
     FireCurve
-        name "tabulated", duration the last time of the table.
+        name "tabulated", duration as given or the last time of the table.
 
     Notes
     -----
@@ -496,39 +499,52 @@ def tabulated_fire(times, temperatures, convection_coefficient: float,
     theta = np.asarray(temperatures, dtype=float)
     alpha = _check_convection(convection_coefficient)
     if t.ndim != 1 or theta.ndim != 1 or t.size != theta.size:
-        raise PhysicsRangeError("tabulated fire points", f"{t.size} times and {theta.size} "
-                                "temperatures", "as many temperatures as times")
+        raise PhysicsRangeError("temperatures", f"{theta.size} temperatures for {t.size} times",
+                                "as many temperatures as times, in one list each")
     if t.size < 2:
-        raise PhysicsRangeError("tabulated fire points", int(t.size), "at least 2 points")
-    if not (np.all(np.isfinite(t)) and np.all(np.isfinite(theta))):
-        raise PhysicsRangeError("tabulated fire points", "a value that is not finite",
-                                "finite times and temperatures")
+        raise PhysicsRangeError("times", int(t.size), "at least 2 points")
+    if not np.all(np.isfinite(t)):
+        bad = int(np.argmax(~np.isfinite(t)))
+        raise PhysicsRangeError("times", float(t[bad]), "finite times", index=bad)
+    if not np.all(np.isfinite(theta)):
+        bad = int(np.argmax(~np.isfinite(theta)))
+        raise PhysicsRangeError("temperatures", float(theta[bad]), "finite temperatures",
+                                index=bad)
     if t[0] != 0.0:
-        raise PhysicsRangeError("first time of a tabulated fire [s]", float(t[0]),
-                                "0 s (the start of the exposure)")
+        raise PhysicsRangeError("times", float(t[0]), "0 s (the start of the exposure)", index=0)
     steps = np.diff(t)
     if np.any(steps <= 0.0):
         bad = int(np.argmax(steps <= 0.0)) + 1
-        raise PhysicsRangeError(f"time of point {bad + 1} of a tabulated fire [s]", float(t[bad]),
-                                f"strictly increasing times (> {float(t[bad - 1])!r} s)")
+        raise PhysicsRangeError("times", float(t[bad]),
+                                f"strictly increasing times (> {float(t[bad - 1])!r} s)",
+                                index=bad)
     if np.any(theta <= 0.0):
         bad = int(np.argmax(theta <= 0.0))
-        raise PhysicsRangeError(f"temperature of point {bad + 1} of a tabulated fire [K]",
-                                float(theta[bad]), "an absolute temperature > 0 K")
+        raise PhysicsRangeError("temperatures", float(theta[bad]),
+                                "an absolute temperature > 0 K", index=bad)
     t_end = float(t[-1])
+    if duration is None:
+        exposure = t_end
+    else:
+        exposure = _check_duration(duration)
+        if exposure > t_end * (1.0 + 1e-12):
+            raise PhysicsRangeError("duration", exposure,
+                                    f"duration <= {t_end!r} s, the last time of the table (a "
+                                    "tabulated curve is not extended beyond its points)")
+        exposure = min(exposure, t_end)
     t_table = t.copy()
     theta_table = theta.copy()
 
     def temperature(times_s: np.ndarray) -> np.ndarray:
         # A tolerance of one part in 10^12 of the table's span lets a time stepper land on the end.
         if times_s.size and np.max(times_s) > t_end * (1.0 + 1e-12):
-            raise PhysicsRangeError("time of a tabulated fire [s]", float(np.max(times_s)),
+            raise PhysicsRangeError("t", float(np.max(times_s)),
                                     f"0 s <= t <= {t_end!r} s, the last time of the table "
                                     "(the curve is not extended beyond its points)")
         return np.interp(times_s, t_table, theta_table)
 
     return FireCurve(
-        name="tabulated", convection_coefficient=alpha, duration=t_end, source=str(source),
+        name="tabulated", convection_coefficient=alpha, duration=exposure, source=str(source),
         equation=(r"\theta_g(t) = \theta_i + (\theta_{i+1} - \theta_i)"
                   r"\,\frac{t - t_i}{t_{i+1} - t_i}"),
         temperature_function=temperature,
@@ -623,24 +639,24 @@ def parametric_fire(opening_factor: float, fire_load_density: float, thermal_ine
     b = float(thermal_inertia)
     q_mj = float(fire_load_density) / 1e6
     if not (math.isfinite(O) and 0.02 <= O <= 0.20):
-        raise PhysicsRangeError("opening factor O [m^0.5]", O, "0.02 <= O <= 0.20 m^0.5 "
+        raise PhysicsRangeError("opening_factor", O, "0.02 <= O <= 0.20 m^0.5 "
                                 "(EN 1991-1-2:2002 Annex A)")
     if not (math.isfinite(b) and 100.0 <= b <= 2200.0):
-        raise PhysicsRangeError("thermal inertia b [J/(m^2*s^0.5*K)]", b,
+        raise PhysicsRangeError("thermal_inertia", b,
                                 "100 <= b <= 2200 J/(m^2*s^0.5*K) (EN 1991-1-2:2002 Annex A)")
     if not (math.isfinite(q_mj) and 50.0 <= q_mj <= 1000.0):
-        raise PhysicsRangeError("fire load density q_t,d [J/m^2]", float(fire_load_density),
+        raise PhysicsRangeError("fire_load_density", float(fire_load_density),
                                 "50e6 <= q_t,d <= 1000e6 J/m^2, i.e. 50 to 1000 MJ/m^2 "
                                 "(EN 1991-1-2:2002 Annex A)")
     if fire_growth not in FIRE_GROWTH_LIMITING_TIME:
-        raise PhysicsRangeError("fire growth rate", fire_growth, "slow | medium | fast")
+        raise PhysicsRangeError("fire_growth", fire_growth, "slow | medium | fast")
     area = float(floor_area)
     if not (math.isfinite(area) and 0.0 < area <= 500.0):
-        raise PhysicsRangeError("floor area [m^2]", area, "0 < floor area <= 500 m^2 "
+        raise PhysicsRangeError("floor_area", area, "0 < floor area <= 500 m^2 "
                                 "(EN 1991-1-2:2002 Annex A)")
     h = float(height)
     if not (math.isfinite(h) and 0.0 < h <= 4.0):
-        raise PhysicsRangeError("compartment height [m]", h, "0 < height <= 4 m "
+        raise PhysicsRangeError("height", h, "0 < height <= 4 m "
                                 "(EN 1991-1-2:2002 Annex A)")
     duration = _check_duration(duration)
 

@@ -84,12 +84,12 @@ def _specific_heat_celsius(theta: float) -> float:
     return 650.0
 
 
-def _check_steel_range(temperature: np.ndarray, what: str = "steel temperature θa [K]") -> None:
+def _check_steel_range(temperature: np.ndarray, name: str = "temperature") -> None:
     low, high = STEEL_TEMPERATURE_RANGE
     bad = (temperature < low - _RANGE_TOLERANCE) | (temperature > high + _RANGE_TOLERANCE) | \
         ~np.isfinite(temperature)
     if np.any(bad):
-        raise PhysicsRangeError(what, float(temperature[bad].flat[0]),
+        raise PhysicsRangeError(name, float(temperature[bad].flat[0]),
                                 "293.15 K <= θa <= 1473.15 K, i.e. 20 °C to 1200 °C "
                                 "(EN 1993-1-2:2005 §3.4.1.2)")
 
@@ -147,19 +147,19 @@ def _check_fraction(name: str, value: float, expected: str = "0 < value <= 1") -
     return value
 
 
-def _check_positive(name: str, value: float, unit: str) -> float:
+def _check_positive(name: str, value: float, symbol: str, unit: str) -> float:
     value = float(value)
     if not (math.isfinite(value) and value > 0.0):
-        raise PhysicsRangeError(f"{name} [{unit}]", value, f"a finite value > 0 {unit}")
+        raise PhysicsRangeError(name, value, f"{symbol} > 0 {unit}, finite")
     return value
 
 
-def _check_absolute(name: str, value) -> np.ndarray:
+def _check_absolute(name: str, value, symbol: str) -> np.ndarray:
     values = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(values)) or np.any(values <= 0.0):
         bad = values[~np.isfinite(values) | (values <= 0.0)]
-        raise PhysicsRangeError(f"{name} [K]", float(bad.flat[0]),
-                                "an absolute temperature > 0 K")
+        raise PhysicsRangeError(name, float(bad.flat[0]),
+                                f"{symbol}: an absolute temperature > 0 K")
     return values
 
 
@@ -208,14 +208,14 @@ def net_heat_flux(gas_temperature, member_temperature, convection_coefficient: f
     ----------
     1. EN 1991-1-2:2002, §3.1, eqs. (3.1), (3.2), (3.3).
     """
-    tg = _check_absolute("gas temperature θg", gas_temperature)
-    tm = _check_absolute("member temperature θm", member_temperature)
+    tg = _check_absolute("gas_temperature", gas_temperature, "θg")
+    tm = _check_absolute("member_temperature", member_temperature, "θm")
     alpha = float(convection_coefficient)
     if not (math.isfinite(alpha) and alpha >= 0.0):
-        raise PhysicsRangeError("convection coefficient αc [W/(m²·K)]", alpha, "αc >= 0 W/(m²·K)")
-    em = _check_fraction("member emissivity εm", emissivity_member, "0 < εm <= 1")
-    ef = _check_fraction("fire emissivity εf", emissivity_fire, "0 < εf <= 1")
-    phi = _check_fraction("configuration factor Φ", configuration_factor, "0 < Φ <= 1")
+        raise PhysicsRangeError("convection_coefficient", alpha, "αc >= 0 W/(m²·K)")
+    em = _check_fraction("emissivity_member", emissivity_member, "0 < εm <= 1")
+    ef = _check_fraction("emissivity_fire", emissivity_fire, "0 < εf <= 1")
+    phi = _check_fraction("configuration_factor", configuration_factor, "0 < Φ <= 1")
     flux = alpha * (tg - tm) + phi * em * ef * Stefan_Boltzmann * (tg ** 4 - tm ** 4)
     return float(flux) if np.ndim(flux) == 0 else flux
 
@@ -257,7 +257,7 @@ def critical_temperature_from_utilisation(utilisation: float) -> float:
     """
     mu0 = float(utilisation)
     if not (math.isfinite(mu0) and MINIMUM_UTILISATION <= mu0 <= 1.0):
-        raise PhysicsRangeError("degree of utilisation μ0", mu0,
+        raise PhysicsRangeError("utilisation", mu0,
                                 "0.013 <= μ0 <= 1 (EN 1993-1-2:2005 §4.2.4, eq. (4.22))")
     return 39.19 * math.log(1.0 / (0.9674 * mu0 ** 3.833) - 1.0) + 482.0 + _KELVIN_OFFSET
 
@@ -267,7 +267,7 @@ def critical_temperature_from_utilisation(utilisation: float) -> float:
 def _check_section_factor(section_factor: float, symbol: str) -> float:
     value = float(section_factor)
     if not (math.isfinite(value) and value >= MINIMUM_SECTION_FACTOR):
-        raise PhysicsRangeError(f"section factor {symbol} [1/m]", value,
+        raise PhysicsRangeError("section_factor", value,
                                 f"{symbol} >= 10 1/m (EN 1993-1-2:2005 §4.2.5.1)")
     return value
 
@@ -275,7 +275,7 @@ def _check_section_factor(section_factor: float, symbol: str) -> float:
 def _check_time_step(time_step: float, limit: float, clause: str) -> float:
     value = float(time_step)
     if not (math.isfinite(value) and 0.0 < value <= limit):
-        raise PhysicsRangeError("time step Δt [s]", value,
+        raise PhysicsRangeError("time_step", value,
                                 f"0 s < Δt <= {limit:g} s (EN 1993-1-2:2005 {clause})")
     return value
 
@@ -309,7 +309,7 @@ def protection_capacity_ratio(section_factor: float, protection_thickness: float
 
     Notes
     -----
-    Used in eq. (4.27).
+    Used in eq. (4.27). Every argument must be finite and > 0.
 
     Examples
     --------
@@ -320,9 +320,13 @@ def protection_capacity_ratio(section_factor: float, protection_thickness: float
     ----------
     1. EN 1993-1-2:2005, §4.2.5.2, eq. (4.28).
     """
-    return (float(protection_specific_heat) * float(protection_density)
-            / (float(steel_specific_heat) * float(density))
-            * float(protection_thickness) * float(section_factor))
+    return (_check_positive("protection_specific_heat", protection_specific_heat, "c_p",
+                            "J/(kg·K)")
+            * _check_positive("protection_density", protection_density, "ρp", "kg/m³")
+            / (_check_positive("steel_specific_heat", steel_specific_heat, "c_a", "J/(kg·K)")
+               * _check_positive("density", density, "ρa", "kg/m³"))
+            * _check_positive("protection_thickness", protection_thickness, "d_p", "m")
+            * _check_positive("section_factor", section_factor, "Ap/V", "1/m"))
 
 
 def _unprotected_step(theta_g: float, theta_a: float, factor: float, alpha: float,
@@ -335,14 +339,14 @@ def _unprotected_step(theta_g: float, theta_a: float, factor: float, alpha: floa
 
 def _protected_step(theta_g: float, theta_g_next: float, theta_a: float, section_factor: float,
                     d_p: float, lambda_p: float, rho_p: float, c_p: float, density: float,
-                    dt: float) -> tuple[float, bool]:
+                    dt: float, no_fall_while_heating: bool = True) -> tuple[float, bool]:
     c_a = _specific_heat_celsius(theta_a - _KELVIN_OFFSET)
     phi = c_p * rho_p / (c_a * density) * d_p * section_factor
     delta_g = theta_g_next - theta_g
     delta_a = (lambda_p * section_factor * (theta_g - theta_a)
                / (d_p * c_a * density * (1.0 + phi / 3.0)) * dt
                - (math.exp(phi / 10.0) - 1.0) * delta_g)
-    if delta_g > 0.0 and delta_a < 0.0:
+    if no_fall_while_heating and delta_g > 0.0 and delta_a < 0.0:
         return 0.0, True     # Δθa,t >= 0 if Δθg,t > 0 (text of eq. (4.27))
     return delta_a, False
 
@@ -399,20 +403,20 @@ def unprotected_temperature_increment(gas_temperature: float, steel_temperature:
     1. EN 1993-1-2:2005, §4.2.5.1, eq. (4.25); §3.4.1.2, eq. (3.2).
     2. EN 1991-1-2:2002, §3.1, eqs. (3.1)–(3.3).
     """
-    factor = _check_fraction("shadow factor k_sh", shadow_factor, "0 < k_sh <= 1") * \
+    factor = _check_fraction("shadow_factor", shadow_factor, "0 < k_sh <= 1") * \
         _check_section_factor(section_factor, "Am/V")
     dt = _check_time_step(time_step, UNPROTECTED_MAX_TIME_STEP, "§4.2.5.1")
-    theta_g = float(_check_absolute("gas temperature θg", gas_temperature))
+    theta_g = float(_check_absolute("gas_temperature", gas_temperature, "θg"))
     theta_a = float(steel_temperature)
-    _check_steel_range(np.asarray(theta_a))
+    _check_steel_range(np.asarray(theta_a), "steel_temperature")
     alpha = float(convection_coefficient)
     if not (math.isfinite(alpha) and alpha >= 0.0):
-        raise PhysicsRangeError("convection coefficient αc [W/(m²·K)]", alpha, "αc >= 0 W/(m²·K)")
-    radiation = (_check_fraction("configuration factor Φ", configuration_factor, "0 < Φ <= 1")
-                 * _check_fraction("member emissivity εm", emissivity_member, "0 < εm <= 1")
-                 * _check_fraction("fire emissivity εf", emissivity_fire, "0 < εf <= 1")
+        raise PhysicsRangeError("convection_coefficient", alpha, "αc >= 0 W/(m²·K)")
+    radiation = (_check_fraction("configuration_factor", configuration_factor, "0 < Φ <= 1")
+                 * _check_fraction("emissivity_member", emissivity_member, "0 < εm <= 1")
+                 * _check_fraction("emissivity_fire", emissivity_fire, "0 < εf <= 1")
                  * Stefan_Boltzmann)
-    rho = _check_positive("steel density ρa", density, "kg/m^3")
+    rho = _check_positive("density", density, "ρa", "kg/m³")
     return _unprotected_step(theta_g, theta_a, factor, alpha, radiation, rho, dt)
 
 
@@ -420,7 +424,8 @@ def protected_temperature_increment(gas_temperature: float, gas_temperature_next
                                     steel_temperature: float, section_factor: float,
                                     protection_thickness: float, protection_conductivity: float,
                                     protection_density: float, protection_specific_heat: float,
-                                    time_step: float, density: float = STEEL_DENSITY) -> float:
+                                    time_step: float, density: float = STEEL_DENSITY,
+                                    no_fall_while_heating: bool = True) -> float:
     r"""Return the rise Δθa,t [K] of a steel member with fire protection in one time step.
 
     .. math::
@@ -452,11 +457,15 @@ def protected_temperature_increment(gas_temperature: float, gas_temperature_next
         Δt [s], 0 < Δt <= 30.
     density : float
         ρa [kg/m³] (7850).
+    no_fall_while_heating : bool
+        Apply the rule of eq. (4.27), Δθa,t >= 0 if Δθg,t > 0 (default); False returns the
+        formula's own value, for a report that shows the formula and then the rule.
 
     Returns
     -------
     float
-        Δθa,t [K], set to 0 where the formula gives a fall while the gas is still heating.
+        Δθa,t [K], set to 0 where the formula gives a fall while the gas is still heating
+        (unless ``no_fall_while_heating`` is False).
 
     Notes
     -----
@@ -476,17 +485,20 @@ def protected_temperature_increment(gas_temperature: float, gas_temperature_next
     """
     ap_v = _check_section_factor(section_factor, "Ap/V")
     dt = _check_time_step(time_step, PROTECTED_MAX_TIME_STEP, "§4.2.5.2")
-    theta_g = float(_check_absolute("gas temperature θg", gas_temperature))
-    theta_g_next = float(_check_absolute("gas temperature θg(t+Δt)", gas_temperature_next))
+    theta_g = float(_check_absolute("gas_temperature", gas_temperature, "θg"))
+    theta_g_next = float(_check_absolute("gas_temperature_next", gas_temperature_next,
+                                         "θg(t+Δt)"))
     theta_a = float(steel_temperature)
-    _check_steel_range(np.asarray(theta_a))
-    d_p = _check_positive("protection thickness d_p", protection_thickness, "m")
-    lambda_p = _check_positive("protection conductivity λp", protection_conductivity, "W/(m*K)")
-    rho_p = _check_positive("protection density ρp", protection_density, "kg/m^3")
-    c_p = _check_positive("protection specific heat c_p", protection_specific_heat, "J/(kg*K)")
-    rho = _check_positive("steel density ρa", density, "kg/m^3")
+    _check_steel_range(np.asarray(theta_a), "steel_temperature")
+    d_p = _check_positive("protection_thickness", protection_thickness, "d_p", "m")
+    lambda_p = _check_positive("protection_conductivity", protection_conductivity, "λp",
+                               "W/(m·K)")
+    rho_p = _check_positive("protection_density", protection_density, "ρp", "kg/m³")
+    c_p = _check_positive("protection_specific_heat", protection_specific_heat, "c_p",
+                          "J/(kg·K)")
+    rho = _check_positive("density", density, "ρa", "kg/m³")
     return _protected_step(theta_g, theta_g_next, theta_a, ap_v, d_p, lambda_p, rho_p, c_p, rho,
-                           dt)[0]
+                           dt, no_fall_while_heating)[0]
 
 
 # --- time histories ----------------------------------------------------------------------------
@@ -528,7 +540,7 @@ class SteelHeating:
 def _time_grid(duration: float, time_step: float) -> np.ndarray:
     steps = max(1, math.ceil(duration / time_step - 1e-9))
     if steps > MAX_TIME_STEPS:
-        raise PhysicsRangeError("time step Δt [s]", time_step,
+        raise PhysicsRangeError("time_step", time_step,
                                 f"at most {MAX_TIME_STEPS} steps over the duration (this one "
                                 f"takes {steps})")
     return np.minimum(np.arange(steps + 1, dtype=float) * time_step, duration)
@@ -537,9 +549,9 @@ def _time_grid(duration: float, time_step: float) -> np.ndarray:
 def _gas_history(fire: Callable, times: np.ndarray) -> np.ndarray:
     gas = np.asarray(fire(times), dtype=float)
     if gas.shape != times.shape:
-        raise PhysicsRangeError("fire curve output", f"shape {gas.shape}",
+        raise PhysicsRangeError("fire", f"shape {gas.shape}",
                                 f"one gas temperature per time, shape {times.shape}")
-    return _check_absolute("gas temperature θg", gas)
+    return _check_absolute("fire", gas, "θg of the fire")
 
 
 def _check_initial(initial_temperature: float) -> float:
@@ -547,18 +559,20 @@ def _check_initial(initial_temperature: float) -> float:
     low, high = STEEL_TEMPERATURE_RANGE
     if not (math.isfinite(theta0) and low - _RANGE_TOLERANCE <= theta0 <= high):
         raise PhysicsRangeError(
-            "initial steel temperature [K]", theta0,
+            "initial_temperature", theta0,
             "293.15 K <= θa,0 <= 1473.15 K: c_a of EN 1993-1-2:2005 §3.4.1.2 starts at 20 °C "
             "(a member that starts colder may be taken at 20 °C, which reaches any temperature "
             "sooner)")
     return max(theta0, low)
 
 
-def _out_of_range(theta: float, t: float) -> PhysicsRangeError:
+def _out_of_range(theta: float, t: float, duration: float) -> PhysicsRangeError:
+    # The duration is what the engineer can change: the steel leaves the range of c_a within it.
     return PhysicsRangeError(
-        f"steel temperature θa at t = {t:g} s [K]", theta,
-        "293.15 K <= θa <= 1473.15 K, i.e. 20 °C to 1200 °C (EN 1993-1-2:2005 §3.4.1.2); "
-        "shorten the duration to end before the steel leaves that range")
+        "duration", duration,
+        f"a duration that ends before the steel leaves 293.15 K <= θa <= 1473.15 K, i.e. "
+        f"20 °C to 1200 °C, the range of c_a (EN 1993-1-2:2005 §3.4.1.2): θa = {theta:.6g} K "
+        f"at t = {t:g} s")
 
 
 def unprotected_steel_heating(fire: Callable, duration: float, section_factor: float,
@@ -624,18 +638,18 @@ def unprotected_steel_heating(fire: Callable, duration: float, section_factor: f
     1. EN 1993-1-2:2005, §4.2.5.1, eqs. (4.25), (4.26); §3.4.1.2, eq. (3.2); §2.2(2).
     2. EN 1991-1-2:2002, §3.1, eqs. (3.1)–(3.3).
     """
-    duration = _check_positive("duration", duration, "s")
-    factor = _check_fraction("shadow factor k_sh", shadow_factor, "0 < k_sh <= 1") * \
+    duration = _check_positive("duration", duration, "duration", "s")
+    factor = _check_fraction("shadow_factor", shadow_factor, "0 < k_sh <= 1") * \
         _check_section_factor(section_factor, "Am/V")
     dt = _check_time_step(time_step, UNPROTECTED_MAX_TIME_STEP, "§4.2.5.1")
     alpha = float(convection_coefficient)
     if not (math.isfinite(alpha) and alpha >= 0.0):
-        raise PhysicsRangeError("convection coefficient αc [W/(m²·K)]", alpha, "αc >= 0 W/(m²·K)")
-    radiation = (_check_fraction("configuration factor Φ", configuration_factor, "0 < Φ <= 1")
-                 * _check_fraction("member emissivity εm", emissivity_member, "0 < εm <= 1")
-                 * _check_fraction("fire emissivity εf", emissivity_fire, "0 < εf <= 1")
+        raise PhysicsRangeError("convection_coefficient", alpha, "αc >= 0 W/(m²·K)")
+    radiation = (_check_fraction("configuration_factor", configuration_factor, "0 < Φ <= 1")
+                 * _check_fraction("emissivity_member", emissivity_member, "0 < εm <= 1")
+                 * _check_fraction("emissivity_fire", emissivity_fire, "0 < εf <= 1")
                  * Stefan_Boltzmann)
-    rho = _check_positive("steel density ρa", density, "kg/m^3")
+    rho = _check_positive("density", density, "ρa", "kg/m³")
     theta = _check_initial(initial_temperature)
 
     times = _time_grid(duration, dt)
@@ -647,7 +661,7 @@ def unprotected_steel_heating(fire: Callable, duration: float, section_factor: f
         theta += _unprotected_step(float(gas[i]), theta, factor, alpha, radiation, rho,
                                    float(times[i + 1] - times[i]))
         if not (low - _RANGE_TOLERANCE <= theta <= high):
-            raise _out_of_range(theta, float(times[i + 1]))
+            raise _out_of_range(theta, float(times[i + 1]), duration)
         steel[i + 1] = theta
     return SteelHeating(time=times, temperature=steel, gas_temperature=gas, time_step=dt,
                         method="unprotected, EN 1993-1-2:2005 eq. (4.25)")
@@ -714,14 +728,16 @@ def protected_steel_heating(fire: Callable, duration: float, section_factor: flo
     ----------
     1. EN 1993-1-2:2005, §4.2.5.2, eqs. (4.27), (4.28); §3.4.1.2, eq. (3.2).
     """
-    duration = _check_positive("duration", duration, "s")
+    duration = _check_positive("duration", duration, "duration", "s")
     ap_v = _check_section_factor(section_factor, "Ap/V")
     dt = _check_time_step(time_step, PROTECTED_MAX_TIME_STEP, "§4.2.5.2")
-    d_p = _check_positive("protection thickness d_p", protection_thickness, "m")
-    lambda_p = _check_positive("protection conductivity λp", protection_conductivity, "W/(m*K)")
-    rho_p = _check_positive("protection density ρp", protection_density, "kg/m^3")
-    c_p = _check_positive("protection specific heat c_p", protection_specific_heat, "J/(kg*K)")
-    rho = _check_positive("steel density ρa", density, "kg/m^3")
+    d_p = _check_positive("protection_thickness", protection_thickness, "d_p", "m")
+    lambda_p = _check_positive("protection_conductivity", protection_conductivity, "λp",
+                               "W/(m·K)")
+    rho_p = _check_positive("protection_density", protection_density, "ρp", "kg/m³")
+    c_p = _check_positive("protection_specific_heat", protection_specific_heat, "c_p",
+                          "J/(kg·K)")
+    rho = _check_positive("density", density, "ρa", "kg/m³")
     theta = _check_initial(initial_temperature)
 
     times = _time_grid(duration, dt)
@@ -737,7 +753,7 @@ def protected_steel_heating(fire: Callable, duration: float, section_factor: flo
         zero_rise += clamped
         theta += delta
         if not (low - _RANGE_TOLERANCE <= theta <= high):
-            raise _out_of_range(theta, float(times[i + 1]))
+            raise _out_of_range(theta, float(times[i + 1]), duration)
         steel[i + 1] = theta
     return SteelHeating(time=times, temperature=steel, gas_temperature=gas, time_step=dt,
                         method="protected, EN 1993-1-2:2005 eq. (4.27)", zero_rise_steps=zero_rise)
@@ -782,8 +798,8 @@ def time_to_temperature(time, temperature, target: float) -> float | None:
     t = np.asarray(time, dtype=float)
     theta = np.asarray(temperature, dtype=float)
     if t.shape != theta.shape or t.ndim != 1 or t.size == 0:
-        raise PhysicsRangeError("temperature history", f"{t.size} times, {theta.size} "
-                                "temperatures", "as many temperatures as times, at least one")
+        raise PhysicsRangeError("temperature", f"{theta.size} temperatures for {t.size} times",
+                                "as many temperatures as times, at least one")
     reached = np.nonzero(theta >= target)[0]
     if reached.size == 0:
         return None
@@ -830,6 +846,6 @@ def temperature_at_time(time, temperature, at: float) -> float:
     theta = np.asarray(temperature, dtype=float)
     at = float(at)
     if not (t[0] <= at <= t[-1] * (1.0 + 1e-12)):
-        raise PhysicsRangeError("time [s]", at, f"{float(t[0])!r} s <= t <= {float(t[-1])!r} s, "
+        raise PhysicsRangeError("at", at, f"{float(t[0])!r} s <= t <= {float(t[-1])!r} s, "
                                 "within the simulated history")
     return float(np.interp(at, t, theta))
