@@ -244,7 +244,8 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
             return None
         path = _input_path(exc, kind)
         errors.append(InputError(_locate(path, ctx.records, spec), f"{spec.key}.inputs.{path}",
-                                 "outside the range of the method", exc.expected, _got(exc)))
+                                 "outside the range of the method", exc.expected,
+                                 _got(exc, path, ctx.records)))
         return None
     except InputError as err:
         errors.append(err)
@@ -257,8 +258,14 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
     return EvaluatedBlock(spec=spec, kind=kind, inputs=ctx.records, output=out, checks=checks)
 
 
-def _got(exc) -> str | None:
+def _got(exc, path: str = "", records=()) -> str | None:
+    """The value refused, as the engineer wrote it where the error is their input's."""
     value = getattr(exc, "value", None)
+    for r in records:
+        if r.path == path and r.written and isinstance(value, (int, float)) and \
+                isinstance(r.si, (int, float)) and math.isclose(float(r.si), float(value),
+                                                                rel_tol=1e-9):
+            return repr(r.written)
     if value is None:
         return None
     return f"{value:.4g}" if isinstance(value, (int, float)) else str(value)

@@ -218,7 +218,9 @@ def to_latex(tree: ast.AST, leaf) -> str:
                 return rf"\sqrt{{{args[0]}}}"
             if name == "abs":
                 return rf"\left|{args[0]}\right|"
-            if name in ("exp", "log", "sin", "cos", "tan", "min", "max"):
+            if name == "log":  # the natural logarithm, as engineers write it
+                return rf"\ln\left({args[0]}\right)"
+            if name in ("exp", "sin", "cos", "tan", "min", "max"):
                 return rf"\{name}\left({', '.join(args)}\right)"
             if name == "log10":
                 return rf"\log_{{10}}\left({args[0]}\right)"

@@ -115,7 +115,12 @@ def print_value(value: Value, sig: int, system: str = "SI", kelvin: bool = False
             return Printed(match.group(1).replace("-", "−"), unit)
     shown = convert(float(si), value.unit, unit) if unit else float(si)
     if value.given:
-        return Printed(_given_number(shown), unit)
+        text = _given_number(shown)
+        # In full where six figures hold the number; a conversion that does not (US units)
+        # leaves it to the significant figures below, so that a step still re-does.
+        again = float(machine_number(text))
+        if math.isclose(again, shown, rel_tol=1e-12, abs_tol=0.0) or not math.isfinite(shown):
+            return Printed(text, unit)
     difference = value.temperature == DIFFERENCE or (value.unit == "K" and
                                                      value.temperature is None)
     digits = kelvin_digits(shown, unit, sig, difference)
