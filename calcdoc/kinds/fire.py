@@ -15,7 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from calcdoc.errors import InputError, Location
-from calcdoc.kinds.base import (ABSOLUTE, Choice, Field, Figure, InputRecord, Kind,
+from calcdoc.kinds.base import (ABSOLUTE, Choice, Field, InputRecord, Kind,
                                 MaterialField, Quantity, Record, ResultSpec, Text, _Invalid,
                                 did_you_mean)
 from calcdoc.located import plain
@@ -504,7 +504,6 @@ FIRE_CURVE = Kind(
                    temperature=ABSOLUTE),
     ),
     compute=_compute_fire_curve,
-    figures=_figures_fire_curve,
     caution=FIRE_CAUTION + " A fire curve is a model of exposure, not a prediction of a real "
             "fire: its choice and parameters (fire load, openings, linings) are for the "
             "engineer and the authority to accept for the compartment as built and used.",
@@ -833,7 +832,6 @@ STEEL_MEMBER_HEATING = Kind(
                    temperature=ABSOLUTE),
     ),
     compute=_compute_steel,
-    figures=_figures_steel,
     exactly_one=(("critical_temperature", "utilisation"),),
     caution=FIRE_CAUTION + " The lumped method gives one uniform steel temperature; the "
             "critical temperature, the section factor and the protection product's assessed "
