@@ -358,6 +358,16 @@ def test_demo_steps__redo_with_pint_from_the_printed_numbers(tmp_path):
                 (block.key, step.name, step.item, record, again)
 
 
+def test_cold_store_side_below_20_degc__warned_outside_the_en1992_law(evaluate):
+    # EN 1992-1-2:2004 §3.3 gives its laws from 20 °C; a wall starting at 5 °C leaves that range
+    # and the block says so, naming the layer and both temperatures.
+    package = evaluate(sheet(CONCRETE_120.replace("180 min", "30 min")
+                             + "initial_temperature: 5 degC\n"))
+    warnings = [fill(w["text"], SIG) for w in package.block("W1.wall").output.warnings]
+    assert any(w.startswith("Layer 1 (slab) reached 5.00 °C, below the start of its material law "
+                            "at 20 °C") for w in warnings), warnings
+
+
 # ----------------------------------------------------------------------------- bad input
 
 

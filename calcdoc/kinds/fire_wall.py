@@ -242,7 +242,7 @@ def _plan_layers(inp, out) -> list[_LayerPlan]:
     plans = []
     for i, layer in enumerate(inp.layers):
         material = layer["material"]
-        label = layer["name"] or (material["name"] if material else f"layer {i + 1}")
+        label = layer["name"] or (material["name"] if material else "unnamed layer")
         law_name = material.get("law") if material is not None else None
         if material is None:
             law = constant_law(layer["conductivity"], layer["density"], layer["specific_heat"],
@@ -261,15 +261,25 @@ def _plan_layers(inp, out) -> list[_LayerPlan]:
     return plans
 
 
+def _item_of(out, i: int) -> str:
+    """The name the input tables give layer ``i`` (its own name, or the list's numbering), so
+    that a layer's steps and its inputs name it alike."""
+    for record in out.records:
+        if record.path == f"layers[{i}].thickness":
+            return record.item
+    return ""
+
+
 def _layer_steps(inp, out, plans: list[_LayerPlan]):
     """Each layer's properties at 20 °C, from its law's equations and tables, and its thermal
     diffusivity there: the numbers a checker compares with the standard first."""
     theta = _given(20.0)  # the laws take θ as a number of °C
     for plan in plans:
-        i, item = plan.index, plan.label
+        i = plan.index
+        item = _item_of(out, i)
         layer = inp.layers[i]
         material = layer["material"]
-        where = {"n": _given(i + 1), "name": Value(item)}
+        where = {"n": _given(i + 1), "name": Value(plan.label)}
 
         def label(words: str) -> Phrase:
             return phrase("Layer {n}, {name}: " + words, **where)
@@ -304,7 +314,8 @@ def _layer_steps(inp, out, plans: list[_LayerPlan]):
                  "lambda_1": _given(coefficients[1], "W/(m*K)"),
                  "lambda_2": _given(coefficients[2], "W/(m*K)"), "theta": theta},
                 float(concrete_conductivity(ZERO_CELSIUS + 20.0, limit)), "W/(m*K)",
-                label=label(f"conductivity of the concrete at θ = 20 °C, {limit} limit"), item=item,
+                label=label(f"conductivity of the concrete at θ = 20 °C, {limit} limit"),
+                item=item,
                 source=f"{_EN1992} §3.3.3(2), eq. ({'3.8' if limit == 'lower' else '3.7'}) "
                        "(θ in °C)",
                 group=f"Conductivity of concrete at 20 °C, {limit} limit")
