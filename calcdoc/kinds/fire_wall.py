@@ -746,7 +746,7 @@ def _figures(out, run, inp, plans, monitors, fire, report, duration, required, t
         seen.append((law.name, law.options))
         kelvin = _law_temperatures(law)
         for prop, words, unit in (("conductivity", "thermal conductivity λ", "W/(m*K)"),
-                                  ("specific_heat", "specific heat c_p", "J/(kg*K)"),
+                                  ("specific_heat", "specific heat", "J/(kg*K)"),
                                   ("density", "density ρ", "kg/m^3")):
             values = np.asarray(getattr(law, prop)(kelvin), dtype=float) * np.ones_like(kelvin)
             caption = Phrase("Material law, " + words + ", 20 °C to 1200 °C: "
