@@ -35,6 +35,7 @@ from calcdoc.physics.thermal_laws import (LAW_TEMPERATURE_RANGE, ZERO_CELSIUS, T
                                           steel_conductivity, steel_specific_heat)
 from calcdoc.physics.transient import (DEFAULT_MIN_CELLS, FireExposure, HeldTemperature, Layer,
                                        check_convergence)
+from calcdoc.references import Cite
 
 __all__ = ["KINDS", "WALL_FIRE_EXPOSURE", "PROFILE_TIMES"]
 
@@ -51,14 +52,21 @@ _DEFAULT_MOISTURE = 0.015
 _DEFAULT_DENSITY_20 = 2300.0
 _MOISTURE_CAP = 0.03  # EN 1992-1-2 §3.3.2(2): the specific-heat peak is given up to 3 %
 _DECAY_DEFAULT = 200.0
-_DECAY_SOURCE = ("EN 1991-1-2:2002 §2.1.3: decay-phase limit Δθ1, a nationally determined "
-                 "parameter; recommended value 200 K (from memory of the Note)")
-_CONCRETE_DEFAULT_SOURCE = ("EN 1992-1-2:2004 §3.3.3(2) Note (Annex A is compatible with the "
-                            "lower limit); §3.3.2(2) (1.5 % moisture); FORMAT.md defaults")
+# The recommended decay-phase limit is recalled, not read from the printed Note: marked as data,
+# so that the package lists it among the values to confirm.
+_DECAY_SOURCE = Cite("EN 1991-1-2:2002", "§2.1.3, Note (decay-phase insulation limit, a "
+                     "nationally determined parameter)", confirmed=False,
+                     key="EN 1991-1-2:2002 §2.1.3 decay-phase insulation limit",
+                     value="decay-phase insulation limit 200 K (recommended value)")
+_CONCRETE_DEFAULT_SOURCE = ("EN 1992-1-2:2004, §3.3.3(2) Note (Annex A is compatible with the "
+                            "lower limit) and §3.3.2(2) (moisture 1.5 %); ρ(20 °C) = 2300 kg/m³ "
+                            "is calcdoc's default for normal-weight concrete")
 _EN1992 = "EN 1992-1-2:2004"
 _EN1993 = "EN 1993-1-2:2005"
-_RUN_SOURCE = ("calcdoc.physics.transient (method stated in its module documentation); "
-               "FORMAT.md, wall_fire_exposure (halving both changes the result by under 1 %)")
+_RUN_SOURCE = ("calcdoc.physics.transient (the method is stated in its module documentation); "
+               "the halving check is calcdoc's (FORMAT.md, wall_fire_exposure: under 1 %)")
+_RESOLUTION_SOURCE = ("calcdoc input format (FORMAT.md), wall_fire_exposure: the mesh and step "
+                      "resolve the result to 1 %")
 _INSULATION_SOURCE = "EN 1363-1 (mean rise 140 K); EN 1991-1-2:2002 §2.1.3"
 
 
@@ -246,7 +254,7 @@ def _plan_layers(inp, out) -> list[_LayerPlan]:
         law_name = material.get("law") if material is not None else None
         if material is None:
             law = constant_law(layer["conductivity"], layer["density"], layer["specific_heat"],
-                               layer.get("source") or "stated in the layer")
+                               layer.get("source") or "")
             description = phrase("constant properties stated in the layer")
         elif law_name == _CONCRETE:
             law, description = _concrete_plan(i, layer, label, out)
@@ -344,7 +352,7 @@ def _layer_steps(inp, out, plans: list[_LayerPlan]):
         else:
             if material is None:
                 lam, rho, c = (out.input(f"layers[{i}].{name}") for name in _CONSTANT)
-                source = layer.get("source") or "stated in the layer"
+                source = layer.get("source") or ""
             else:
                 lam, rho, c = (_given(material["conductivity"], "W/(m*K)"),
                                _given(material["density"], "kg/m^3"),
@@ -431,7 +439,7 @@ def _compute_wall(inp, out):
         held = float(inp.fixed_temperature)
         exposure = HeldTemperature(lambda t: np.full_like(np.asarray(t, dtype=float), held))
         h_c = None
-        out.note("Exposed face held at {theta} from the start.", "stated input",
+        out.note("Exposed face held at {theta} from the start.", "",
                  theta=out.input("fixed_temperature"))
     out.note("Unexposed face: convection {h} plus radiation with emissivity {e} to "
              "surroundings at the initial temperature {theta}.", "EN 1991-1-2:2002 §3.1(5)",
@@ -478,8 +486,8 @@ def _compute_wall(inp, out):
     # Warnings and the statement of what is not modelled
     if not check.passed:
         out.warn("Halving the cells and the time step changes the result by {change}, more "
-                 "than {limit}: it is not resolved to the accuracy FORMAT.md asks for; reduce "
-                 "cell_size and time_step.", "FORMAT.md, wall_fire_exposure",
+                 "than {limit}: the result is not resolved; reduce cell_size and time_step.",
+                 _RESOLUTION_SOURCE,
                  change=Value(check.relative_change, "1", "%"), limit=_percent(check.limit))
     for index, low, high, (lo, hi) in run.outside_law_range():
         where = {"n": _given(index + 1), "name": Value(plans[index].label)}
