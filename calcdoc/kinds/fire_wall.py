@@ -54,20 +54,17 @@ _MOISTURE_CAP = 0.03  # EN 1992-1-2 §3.3.2(2): the specific-heat peak is given 
 _DECAY_DEFAULT = 200.0
 # The recommended decay-phase limit is recalled, not read from the printed Note: marked as data,
 # so that the package lists it among the values to confirm.
-_DECAY_SOURCE = Cite("EN 1991-1-2:2002", "§2.1.3, Note (decay-phase insulation limit, a "
-                     "nationally determined parameter)", confirmed=False,
+_DECAY_SOURCE = Cite("EN 1991-1-2:2002", "§2.1.3, Note", confirmed=False,
                      key="EN 1991-1-2:2002 §2.1.3 decay-phase insulation limit",
                      value="decay-phase insulation limit 200 K (recommended value)")
-_CONCRETE_DEFAULT_SOURCE = ("EN 1992-1-2:2004, §3.3.3(2) Note (Annex A is compatible with the "
-                            "lower limit) and §3.3.2(2) (moisture 1.5 %); ρ(20 °C) = 2300 kg/m³ "
-                            "is calcdoc's default for normal-weight concrete")
+# A source is printed as [n, where]: the clause only, the reasons are in the words it supports.
+_CONCRETE_DEFAULT_SOURCE = "EN 1992-1-2:2004, §3.3.3(2) Note and §3.3.2(2)"
 _EN1992 = "EN 1992-1-2:2004"
 _EN1993 = "EN 1993-1-2:2005"
-_RUN_SOURCE = ("calcdoc.physics.transient (the method is stated in its module documentation); "
-               "the halving check is calcdoc's (FORMAT.md, wall_fire_exposure: under 1 %)")
+_RUN_SOURCE = "calcdoc.physics.transient (the method is stated in its documentation)"
 _RESOLUTION_SOURCE = ("calcdoc input format (FORMAT.md), wall_fire_exposure: the mesh and step "
                       "resolve the result to 1 %")
-_INSULATION_SOURCE = "EN 1363-1 (mean rise 140 K); EN 1991-1-2:2002 §2.1.3"
+_INSULATION_SOURCE = "EN 1363-1; EN 1991-1-2:2002, §2.1.3"
 
 
 def _given(value: float, unit: str = "1", display: str | None = None,
@@ -235,7 +232,12 @@ def _concrete_plan(i: int, layer: dict, label: str, out) -> tuple[ThermalLaw, Ph
     if defaults:
         values = {k: v for _, part in defaults for k, v in part.items()}
         out.note("Layer {n} ({name}): " + ", ".join(text for text, _ in defaults)
-                 + " by default.", _CONCRETE_DEFAULT_SOURCE, **where, **values)
+                 + " by default" + ("; the lower limit is the one EN 1992-1-2 Annex A is "
+                                    "compatible with" if layer["conductivity_limit"] is None
+                                    else "")
+                 + ("; ρ(20 °C) is calcdoc's default for normal-weight concrete"
+                    if layer["density"] is None else "") + ".",
+                 _CONCRETE_DEFAULT_SOURCE, **where, **values)
     try:
         law = concrete_law(limit, u, rho20)
     except PhysicsRangeError as exc:  # the law does not know which layer it is for
@@ -330,7 +332,7 @@ def _layer_steps(inp, out, plans: list[_LayerPlan]):
             rho = _optional_input(out, f"layers[{i}].density",
                                   _given(plan.law.options["density_20"], "kg/m^3"))
             c = _given(900.0, "J/(kg*K)")  # §3.3.2(1): 900 J/(kg·K) from 20 °C to 100 °C
-            source = f"{_EN1992} §3.3.2(1) (c_p = 900 J/(kg·K) to 100 °C) and §3.3.2(3)"
+            source = f"{_EN1992}, §3.3.2(1) and (3)"
         elif plan.law.name == _STEEL:
             lam = out.step("lambda_20", "lambda_0 - lambda_1 * theta",
                            {"lambda_0": _given(54.0, "W/(m*K)"),
@@ -348,7 +350,7 @@ def _layer_steps(inp, out, plans: list[_LayerPlan]):
                          source=f"{_EN1993} §3.4.1.2(1), eq. (3.2) (θ in °C)",
                          group="Specific heat of carbon steel at 20 °C")
             rho = _given(7850.0, "kg/m^3")
-            source = f"{_EN1993} §3.2.2(1) (ρ_a = 7850 kg/m³)"
+            source = f"{_EN1993}, §3.2.2(1)"
         else:
             if material is None:
                 lam, rho, c = (out.input(f"layers[{i}].{name}") for name in _CONSTANT)
@@ -433,7 +435,7 @@ def _compute_wall(inp, out):
                  + ("(the fire's own)" if inp.exposed_convection is None else
                     "(set in this block)")
                  + "; radiation temperature taken equal to the gas temperature.",
-                 f"EN 1991-1-2:2002 §3.1, eqs. (3.1)–(3.3); {fire.source}",
+                 "EN 1991-1-2:2002, §3.1, eqs. (3.1)–(3.3)",
                  fire=Value(fire.name), h_c=h_c)
     else:
         held = float(inp.fixed_temperature)
@@ -584,7 +586,7 @@ def _result_statements(out, run, inp, monitors, required, duration, t_end, theta
     out.statement("theta_u_end", "Temperature of the unexposed face at the end of the exposure, "
                   "t = {t}, from the transient run.", float(run.unexposed_surface[-1]), "K",
                   values={"t": t_end}, label="Unexposed face at the end",
-                  source=_RUN_SOURCE, yields="theta_unexposed_end")
+                  yields="theta_unexposed_end")
     at = t_end
     if required is not None:
         at = out.input("required_resistance")
@@ -592,7 +594,7 @@ def _result_statements(out, run, inp, monitors, required, duration, t_end, theta
                       "t = {t} (a time step of the run).",
                       float(np.interp(required, run.times, run.unexposed_surface)), "K",
                       values={"t": at}, label="Unexposed face at the required period",
-                      source=_RUN_SOURCE, yields="theta_unexposed_at_required")
+                      yields="theta_unexposed_at_required")
     t_at = required if required is not None else duration
     for j, monitor in enumerate(monitors):
         name = f"theta_{monitor['name']}"
@@ -607,8 +609,7 @@ def _result_statements(out, run, inp, monitors, required, duration, t_end, theta
                       "{name}) at t = {t}, linear between the nodes either side of it.", value,
                       "K", values={"x": out.input(f"monitor[{j}].depth"),
                                    "name": Value(monitor["name"]), "t": at},
-                      label="Monitor point " + monitor["name"], source=_RUN_SOURCE,
-                      yields=name, symbols={name: r"\theta_{\mathrm{"
+                      label="Monitor point " + monitor["name"], yields=name, symbols={name: r"\theta_{\mathrm{"
                                             + monitor["name"].replace("_", r"\_") + "}}"})
 
 
@@ -817,7 +818,7 @@ WALL_FIRE_EXPOSURE = Kind(
         _MonitorField("monitor", "monitor points {name, depth}", default=None,
                       fields=_MONITOR_FIELDS),
         Quantity("insulation_rise", "insulation limit: mean rise of the unexposed face",
-                 default="140 K", source="EN 1363-1 (mean rise 140 K); EN 1991-1-2:2002 §2.1.3",
+                 default="140 K", source="EN 1363-1; EN 1991-1-2:2002, §2.1.3",
                  unit="K", temperature=DIFFERENCE, greater_than=0.0),
         Quantity("decay_insulation_rise", "parametric fire: limit after the gas peak (nationally "
                  "determined; default 200 K, the recommended value of EN 1991-1-2 §2.1.3)",

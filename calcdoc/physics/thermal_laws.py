@@ -595,8 +595,7 @@ def concrete_law(conductivity_limit: str = "lower", moisture_content: float = 0.
         specific_heat=lambda T: concrete_specific_heat(T, u, extend=True),
         # The source cites the clauses only; the options are data (``options``), which the
         # caller prints with its own values.
-        source=("EN 1992-1-2:2004 §3.3 (conductivity §3.3.3(2), specific heat with the moisture "
-                "peak §3.3.2(2), density §3.3.2(3))"),
+        source="EN 1992-1-2:2004, §3.3.2 and §3.3.3",
         temperature_range=LAW_TEMPERATURE_RANGE,
         breakpoints=tuple(ZERO_CELSIUS + t for t in (20.0, 100.0, 115.0, 200.0, 400.0, 1200.0)),
         options={"conductivity_limit": conductivity_limit, "moisture_content": u,
@@ -615,8 +614,7 @@ def carbon_steel_law() -> ThermalLaw:
         conductivity=lambda T: steel_conductivity(T, extend=True),
         density=lambda T: steel_density(T, extend=True),
         specific_heat=lambda T: steel_specific_heat(T, extend=True),
-        source="EN 1993-1-2:2005 §3.2.2 (unit mass), §3.4.1.2 (specific heat), "
-               "§3.4.1.3 (conductivity)",
+        source="EN 1993-1-2:2005, §3.2.2, §3.4.1.2 and §3.4.1.3",
         temperature_range=LAW_TEMPERATURE_RANGE,
         breakpoints=tuple(ZERO_CELSIUS + t for t in (20.0, 600.0, 735.0, 800.0, 900.0, 1200.0)),
     )
