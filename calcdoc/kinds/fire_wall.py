@@ -293,6 +293,7 @@ def _layer_steps(inp, out, plans: list[_LayerPlan]):
 
         def label(words: str) -> Phrase:
             return phrase("Layer {n}, {name}: " + words, **where)
+
         if plan.law.name == _CONCRETE:
             u = plan.law.options["moisture_content"]
             written = layer["moisture_content"]
@@ -387,7 +388,7 @@ def _compute_wall(inp, out):
     t_end = (out.input("duration") if inp.duration is not None
              else _given(duration, "s", "min"))
     if fire is not None and inp.duration is None:
-        out.note("Duration {t}: the fire's.", fire.source, t=t_end)
+        out.note("Duration {t}: the fire's.", "", t=t_end)  # the fire's row cites its source
     required = inp.required_resistance
     if required is not None and required > duration * (1 + 1e-12):
         raise PhysicsRangeError("required_resistance", _written(out, "required_resistance"),
