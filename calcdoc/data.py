@@ -101,7 +101,7 @@ class Line:
 
     x: tuple
     y: tuple
-    label: str = ""
+    label: Phrase | str = ""
     style: int = 0
     marker: bool = False
 
@@ -113,7 +113,7 @@ class Band:
 
     x0: float
     x1: float
-    label: str = ""
+    label: Phrase | str = ""
     shade: int = 0
 
 
@@ -138,7 +138,7 @@ class Mark:
 
     axis: str
     at: float
-    label: str = ""
+    label: Phrase | str = ""
     style: int = 1
 
 
@@ -148,7 +148,7 @@ class Point:
 
     x: float
     y: float
-    label: str = ""
+    label: Phrase | str = ""
 
 
 @dataclass(frozen=True)
@@ -171,7 +171,8 @@ class FigureData:
 
     ``appendix`` sends it to the materials appendix (a material's temperature law) instead of
     the block; ``equal_aspect`` draws both axes to one scale (a plan, a section); ``size`` is
-    the width and height in mm."""
+    the width and height in mm. The words of a line, band, mark or point may be a
+    :class:`Phrase` (``t = {t}``): the view fills its numbers as it prints any other."""
 
     key: str
     caption: Phrase | str

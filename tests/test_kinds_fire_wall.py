@@ -1,16 +1,29 @@
 """The wall_fire_exposure kind: inputs and results of FORMAT.md, defaults with their clauses,
 located errors, and agreement with published limits and closed-form solutions."""
 
+import ast
 import math
+import shutil
 import textwrap
+from pathlib import Path
 
 import numpy as np
+import pint
 import pytest
+from scipy.constants import Stefan_Boltzmann
 from scipy.special import erfc
 
-from calcdoc.kinds.fire_wall import WALL_FIRE_EXPOSURE
+from calcdoc.evaluate import evaluate_folder
+from calcdoc.expressions import parse_expression
 from calcdoc.physics.thermal_laws import LAWS
 from calcdoc.project import Collector, builtin_material_files, load_materials
+from calcdoc.render.numbers import half_unit
+from calcdoc.render.plots import draw
+from calcdoc.render.printed import fill
+
+DEMO = Path(__file__).resolve().parent.parent / "projects" / "cold-store"
+DEMO_SHEETS = ("sheets/fire-plant-room.yaml", "sheets/fire-wall.yaml")  # the wall refs FC1
+SIG = 3  # the demo's precision
 
 
 def sheet(inputs: str, checks: str = "", extra_blocks: str = "") -> dict:
@@ -48,6 +61,14 @@ blocks:
 
 def results(package, key="W1.wall"):
     return package.block(key).output.results
+
+
+def notes_of(block) -> str:
+    return " ".join(fill(n["text"], SIG) for n in block.output.notes)
+
+
+def printed_steps(block) -> dict:
+    return {(s.name, s.item): s for s in block.printed_steps(SIG)}
 
 
 # ------------------------------------------------------------------- published agreement
@@ -127,10 +148,16 @@ def test_defaults_carry_their_clauses(evaluate):
     assert records["insulation_rise"].si == pytest.approx(140.0)
     assert records["exposed_emissivity"].si == pytest.approx(0.7)
     assert "§2.2(2)" in records["exposed_emissivity"].source
-    notes = " ".join(n["text"] for n in block.output.notes)
+    notes = notes_of(block)
     assert "lower-limit conductivity, moisture content 1.5 %" in notes
-    assert "changes the time to insulation by" in notes  # the mesh statement (FORMAT.md)
-    assert "backward Euler time steps of 10 s" in notes
+    # the run is stated with its mesh, step and the halving check (FORMAT.md)
+    run = printed_steps(block)["delta_halving", None]
+    assert "cells per layer 60 of 2.00 mm, time step 10 s" in run.statement
+    assert "Halving both (cells per layer 120, time step 5 s) changes the time to insulation" \
+        in run.statement
+    assert "(limit 1 %)" in run.statement
+    assert block.output.steps[[s.name for s in block.output.steps].index(
+        "delta_halving")].result.si < 0.01  # FORMAT.md: under 1 %
     assert block.kind.caution.startswith("This calculation supports, and does not replace")
 
 
@@ -146,8 +173,11 @@ def test_parametric_fire__decay_limit_200_k_after_the_peak_en1991_1_2_2_1_3(eval
     default = evaluate({**PARAMETRIC_SHEET, **sheet(wall)})
     strict = evaluate({**PARAMETRIC_SHEET, **sheet(wall + "decay_insulation_rise: 140 K\n")})
     block = default.block("W1.wall")
-    notes = " ".join(n["text"] for n in block.output.notes)
-    assert "Decay-phase insulation limit 200" in notes
+    assert "Decay-phase insulation limit 200 K after the gas peak" in notes_of(block)
+    # both limits are steps: θ_0 + Δθ (EN 1363-1, 140 K) and θ_0 + Δθ_2 (200 K)
+    steps = printed_steps(block)
+    assert steps["theta_lim", None].result.text == "160 °C"
+    assert steps["theta_lim_2", None].result.text == "220 °C"
     peak = default.block("FC.fire").output.results["t_max"].value
     strict_time = results(strict)["time_to_insulation"].value
     assert strict_time > peak
@@ -161,7 +191,7 @@ def test_not_reached__absent_and_at_least_check_within_duration_passes(evaluate)
                              "- {result: time_to_insulation, at_least: 60 min}\n"))
     block = package.block("W1.wall")
     assert "time_to_insulation" not in block.output.results
-    assert block.output.absent["time_to_insulation"] == "not reached in 60.0 min"
+    assert fill(block.output.absent["time_to_insulation"], SIG) == "not reached in 60.0 min"
     assert block.output.simulated_until == pytest.approx(3600.0)
     assert block.checks[0].passed
 
@@ -182,18 +212,33 @@ def test_monitor_points__results_and_series_named_theta_name(evaluate):
     assert set(block.output.series) >= {"theta_unexposed", "theta_rebar"}
 
 
-def test_figures__profiles_unexposed_history_and_material_laws(evaluate):
-    package = evaluate(sheet(CONCRETE_120))
+def test_figures__histories_profiles_and_material_laws_as_data(evaluate):
+    package = evaluate(sheet(CONCRETE_120 + "required_resistance: 120 min\n"))
     block = package.block("W1.wall")
-    figures = WALL_FIRE_EXPOSURE.figures(block)
-    keys = [f.key for f in figures]
-    assert keys == ["W1.wall-profiles", "W1.wall-unexposed", "W1.wall-histories",
-                    "W1.wall-laws"]
-    assert all(f.svg.lstrip().startswith("<svg") for f in figures)
-    # profiles at 30/60/90/120 min (issue 4) and the end of the exposure
-    assert list(block.output.figure_data["wall"]["profiles"]) == ["1800", "3600", "5400",
-                                                                  "7200", "10800"]
-    assert "140 K" in figures[1].caption
+    figures = {f.key: f for f in block.output.figures}
+    assert list(figures)[:3] == ["W1.wall-unexposed", "W1.wall-histories", "W1.wall-profiles"]
+    unexposed = figures["W1.wall-unexposed"]
+    # the insulation limit θ_0 + 140 K = 160 °C (EN 1363-1) and the required period are marks
+    marks = {m.axis: m for m in unexposed.marks}
+    assert marks["y"].at == pytest.approx(293.15 + 140.0)
+    assert marks["x"].at == pytest.approx(120 * 60.0)
+    assert fill(marks["x"].label, SIG) == "required 120 min"
+    assert "140 K" in fill(unexposed.caption, SIG)
+    # profiles at 30/60/90/120 min and the end of the exposure, the layer as a band
+    profiles = figures["W1.wall-profiles"]
+    assert [fill(line.label, SIG) for line in profiles.lines] == [
+        "t = 30.0 min", "t = 60.0 min", "t = 90.0 min", "t = 120 min", "t = 180 min"]
+    assert [(b.x0, b.x1, b.label) for b in profiles.bands] == [(0.0, pytest.approx(0.12),
+                                                                 "slab")]
+    # the concrete laws go to the appendix, one figure per property
+    laws = [f for f in block.output.figures if f.appendix]
+    assert [f.y.unit for f in laws] == ["W/(m*K)", "J/(kg*K)", "kg/m^3"]
+    # EN 1992-1-2 §3.3.3(2) eq. (3.8): λ = 1.333 W/(m·K) at 20 °C, 0.549 at 1200 °C (by hand)
+    conductivity = laws[0].lines[0]
+    assert conductivity.y[0] == pytest.approx(1.333, abs=0.0005)
+    assert conductivity.y[-1] == pytest.approx(0.549, abs=0.0005)
+    for figure in block.output.figures:  # every one draws
+        assert draw(figure, SIG).svg.lstrip().startswith("<svg")
 
 
 def test_board_over_concrete__library_board_from_fire_yaml(evaluate):
@@ -209,6 +254,120 @@ def test_board_over_concrete__library_board_from_fire_yaml(evaluate):
     assert results(package)["time_to_insulation"].value > results(bare)["time_to_insulation"].value
 
 
+# ------------------------------------------------------------------- steps a checker redoes
+
+
+def test_layer_steps__en1992_and_en1993_properties_at_20_degc(evaluate):
+    package = evaluate(sheet("""\
+        layers:
+          - {name: slab, thickness: 100 mm, material: concrete_siliceous,
+             moisture_content: 3 %}
+          - {name: plate, thickness: 5 mm, material: carbon_steel}
+        fire: standard
+        duration: 30 min
+        """))
+    steps = printed_steps(package.block("W1.wall"))
+    value = {key: step.result for key, step in steps.items()}
+    # EN 1992-1-2:2004 §3.3.3(2) eq. (3.8), lower limit at 20 °C: 1.36 − 0.136·0.2 + 0.0057·0.04
+    # = 1.333 W/(m·K) (by hand from the printed equation)
+    assert value["lambda_20", "slab"].si("W/(m*K)") == pytest.approx(1.333, abs=0.005)
+    # EN 1992-1-2:2004 §3.3.2(2): c_p,peak = 2020 J/(kg·K) at u = 3 %
+    assert value["c_p_peak", "slab"].text == "2020 J/(kg·K)"
+    assert steps["c_p_peak", "slab"].values["u"].text == "3 %"  # as written
+    # EN 1993-1-2:2005 §3.4.1.3 eq. (3.3): 54 − 0.0333·20 = 53.3 W/(m·K); §3.4.1.2 eq. (3.2):
+    # 425 + 0.773·20 − 1.69e-3·20² + 2.22e-6·20³ = 440 J/(kg·K) (by hand)
+    assert value["lambda_20", "plate"].text == "53.3 W/(m·K)"
+    assert value["c_p_20", "plate"].text == "440 J/(kg·K)"
+    # EN 1993-1-2 §3.2.2(1) ρ = 7850 kg/m³: a = 53.3 / (7850 · 440) = 15.4 mm²/s (by hand)
+    assert value["a_20", "plate"].text == "15.4 mm²/s"
+    assert steps["a_20", "slab"].group == steps["a_20", "plate"].group  # one table
+
+
+def test_boundary_flux_at_the_end__iso834_gas_temperature_and_en1991_1_2_eq_3_1(evaluate):
+    package = evaluate(sheet(CONCRETE_120))
+    step = printed_steps(package.block("W1.wall"))["q_net", None]
+    assert step.expr == ("h_c * (theta_g - theta_s) + Phi * varepsilon_m * varepsilon_f * sigma "
+                         "* (theta_g ** 4 - theta_s ** 4)")
+    # ISO 834-1:1999 / EN 1991-1-2 eq. (3.4): 20 + 345 log10(8·180 + 1) = 1110 °C at 180 min
+    assert step.values["theta_g"].si("degC") == pytest.approx(1110.0, abs=0.5)
+    assert step.values["theta_g"].unit == "K"  # printed absolute, in a fourth power
+    # EN 1991-1-2 §3.1(5) and §3.2.1(2): αc = 25 W/(m²·K) for the standard fire, εm = 0.7
+    # (EN 1992-1-2 §2.2(2)), εf = 1, Φ = 1
+    assert [step.values[n].text for n in ("h_c", "varepsilon_m", "varepsilon_f", "Phi")] == [
+        "25 W/(m²·K)", "0.7", "1", "1"]
+
+
+def _pint_value(text: str, ureg: pint.UnitRegistry):
+    """A printed machine quantity ('20 degC', '1.5 percent', '0.7') as pint reads it; an
+    absolute temperature in °C in kelvin, where arithmetic on it is defined."""
+    number, _, unit = text.partition(" ")
+    q = ureg.Quantity(float(number), unit or "dimensionless")
+    return q.to("kelvin") if unit == "degC" else q
+
+
+def _redo(expr: str, values: dict, ureg: pint.UnitRegistry):
+    names = {k: _pint_value(v, ureg) for k, v in values.items()}
+    names["sigma"] = ureg.Quantity(Stefan_Boltzmann, "W/(m^2*K^4)")  # scipy.constants
+
+    def go(node):
+        if isinstance(node, ast.Expression):
+            return go(node.body)
+        if isinstance(node, ast.Constant):
+            return ureg.Quantity(float(node.value), "dimensionless")
+        if isinstance(node, ast.Name):
+            return names[node.id]
+        if isinstance(node, ast.UnaryOp):
+            return -go(node.operand)
+        if isinstance(node, ast.Call):
+            args = [go(a) for a in node.args]
+            return {"abs": abs, "min": min, "max": max}[node.func.id](*args)
+        left, right = go(node.left), go(node.right)
+        return {ast.Add: left.__add__, ast.Sub: left.__sub__, ast.Mult: left.__mul__,
+                ast.Div: left.__truediv__, ast.Pow: left.__pow__}[type(node.op)](right)
+
+    return go(parse_expression(expr))
+
+
+def test_demo_steps__redo_with_pint_from_the_printed_numbers(tmp_path):
+    # Every formula step of the demo's wall sheet, evaluated with pint (a reference units
+    # library, a registry of its own) from the operands as printed, gives the printed result to
+    # half a unit of its last digit; every block prints at least one such step.
+    project = tmp_path / "demo"
+    shutil.copytree(DEMO, project)
+    (project / "review.yaml").unlink(missing_ok=True)  # its comments are on the other sheets
+    text = (project / "project.yaml").read_text()
+    start = text.index("  sheets:\n")
+    end = text.index("revisions:")
+    (project / "project.yaml").write_text(
+        text[:start] + "  sheets:\n" + "".join(f"    - {s}\n" for s in DEMO_SHEETS)
+        + text[end:])
+    package = evaluate_folder(project)
+    ureg = pint.UnitRegistry()
+    blocks = [b for s in package.sheets for b in s.blocks if b.kind.name == "wall_fire_exposure"]
+    assert [b.key for b in blocks] == ["W7.standard", "W7.plant_room"]
+    for block in blocks:
+        formulas = [s for s in block.printed_steps(SIG) if s.expr is not None]
+        assert formulas, block.key
+        for step in formulas:
+            record = step.record()
+            number, _, unit = record["result"].partition(" ")
+            again = _redo(record["expr"], record["values"], ureg)
+            again = again.to(unit or "dimensionless").magnitude if unit != "degC" else \
+                again.to("degC").magnitude
+            assert abs(again - float(number)) <= half_unit(number) * (1 + 1e-9), \
+                (block.key, step.name, step.item, record, again)
+
+
+def test_cold_store_side_below_20_degc__warned_outside_the_en1992_law(evaluate):
+    # EN 1992-1-2:2004 §3.3 gives its laws from 20 °C; a wall starting at 5 °C leaves that range
+    # and the block says so, naming the layer and both temperatures.
+    package = evaluate(sheet(CONCRETE_120.replace("180 min", "30 min")
+                             + "initial_temperature: 5 degC\n"))
+    warnings = [fill(w["text"], SIG) for w in package.block("W1.wall").output.warnings]
+    assert any(w.startswith("Layer 1 (slab) reached 5.00 °C, below the start of its material law "
+                            "at 20 °C") for w in warnings), warnings
+
+
 # ----------------------------------------------------------------------------- bad input
 
 
@@ -218,7 +377,7 @@ def test_moisture_above_3_percent__spalling_warning_and_the_3_percent_peak(evalu
     # can only shorten the insulation time against a wetter peak (safe side).
     wet = evaluate(sheet(CONCRETE_120.replace("}", ", moisture_content: 3.5 %}")))
     at_cap = evaluate(sheet(CONCRETE_120.replace("}", ", moisture_content: 3 %}")))
-    warnings = [w["message"] for w in wet.block("W1.wall").output.warnings]
+    warnings = [fill(w["text"], SIG) for w in wet.block("W1.wall").output.warnings]
     assert any("explosive spalling must be considered (EN 1992-1-2 §4.5.1(2))" in w
                for w in warnings)
     assert results(wet)["time_to_insulation"].value == results(at_cap)["time_to_insulation"].value
@@ -237,6 +396,8 @@ def test_insulation_rise_in_degc__refused_as_an_absolute_temperature(errors_of):
     (CONCRETE_120.replace("fire: standard\nduration: 180 min\n", "fixed_temperature: 500 degC\n"),
      "a duration"),
     (CONCRETE_120 + "monitor:\n  - {name: deep, depth: 130 mm}\n", "monitor[0].depth"),
+    # EN 1992-1-2 §3.3 is for normal-weight concrete, 2000 to 2600 kg/m³
+    (CONCRETE_120.replace("}", ", density: 1800 kg/m^3}"), "layers[0].density"),
     (CONCRETE_120 + "monitor:\n  - {name: Deep-1, depth: 30 mm}\n", "is not usable"),
     (CONCRETE_120.replace("}", ", conductivity: 1.5 W/(m*K)}"), "set by them"),
     (CONCRETE_120.replace("concrete_siliceous}", "carbon_steel, moisture_content: 1 %}"),

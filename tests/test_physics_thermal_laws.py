@@ -88,7 +88,7 @@ def test_concrete_moisture_above_3_percent__refused_for_spalling_en1992_1_2_4_5_
     # §4.5.1(2)) explosive spalling must be assessed, so the law refuses the input.
     with pytest.raises(PhysicsRangeError) as raised:
         concrete_specific_heat(K(110), 0.035)
-    assert raised.value.quantity == "concrete moisture content"
+    assert raised.value.quantity == "moisture_content"  # the function's own parameter name
     assert raised.value.value == pytest.approx(0.035)
     assert "4.5.1" in raised.value.expected and "spalling" in str(raised.value)
     with pytest.raises(PhysicsRangeError):
@@ -110,8 +110,9 @@ def test_concrete_density__en1992_1_2_3_3_2_3_factors():
 
 def test_concrete_density_outside_normal_weight__refused():
     # §3.3 laws are for normal-weight concrete: 2000-2600 kg/m³ (EN 206, from memory).
-    with pytest.raises(PhysicsRangeError):
+    with pytest.raises(PhysicsRangeError) as raised:
         concrete_density(K(20), 1600.0)
+    assert raised.value.quantity == "density_20"  # the function's own parameter name
 
 
 # ----------------------------------------------------------------------------- carbon steel
@@ -147,8 +148,9 @@ def test_steel_density__en1993_1_2_3_2_2_constant_7850():
 def test_laws_outside_20_to_1200_degc__refused_unless_extended():
     # Both standards define their laws for 20 °C ≤ θ ≤ 1200 °C.
     for law in (concrete_conductivity_lower, steel_specific_heat, concrete_specific_heat):
-        with pytest.raises(PhysicsRangeError):
+        with pytest.raises(PhysicsRangeError) as raised:
             law(K(1250))
+        assert raised.value.quantity == "temperature"  # the function's own parameter name
         with pytest.raises(PhysicsRangeError):
             law(K(5))
     assert concrete_conductivity_lower(K(1300), extend=True) == pytest.approx(0.549, abs=0.0005)
@@ -172,9 +174,13 @@ def test_law_registry__names_used_in_materials_fire_yaml():
     assert concrete.specific_heat(K(110)) == pytest.approx(2020, abs=0.5)
     steel = carbon_steel_law()
     assert steel.conductivity(K(20)) == pytest.approx(53.3, abs=0.05)
-    with pytest.raises(PhysicsRangeError):
-        make_law("en1992_concrete", conductivity_limit="middle")
-    with pytest.raises(PhysicsRangeError):
-        make_law("timber")
-    with pytest.raises(PhysicsRangeError):
-        constant_law(0.0, 600.0, 1200.0)
+    # each refusal names the parameter as the function takes it
+    for call, quantity in ((lambda: make_law("en1992_concrete", conductivity_limit="middle"),
+                            "conductivity_limit"),
+                           (lambda: make_law("timber"), "name"),
+                           (lambda: constant_law(0.0, 600.0, 1200.0), "conductivity"),
+                           (lambda: constant_law(1.0, 600.0, -1.0), "specific_heat"),
+                           (lambda: concrete_law(density_20=2700.0), "density_20")):
+        with pytest.raises(PhysicsRangeError) as raised:
+            call()
+        assert raised.value.quantity == quantity

@@ -269,15 +269,29 @@ def test_cold_initial_temperature__law_extension_reported():
     assert inside.outside_law_range() == []
 
 
-def test_bad_inputs__physics_range_errors():
+def test_bad_inputs__physics_range_errors_name_the_parameter_and_the_list_element():
+    # Each error names the function's own parameter (and the element of a list argument), so
+    # that a kind maps it to its input once (Kind.input_names).
     layers = [Layer(0.1, concrete_law())]
-    with pytest.raises(PhysicsRangeError):
-        solve_transient([Layer.constant(0.0, 1.0, 1.0, 1.0)], STANDARD_FIRE, 60.0)
-    with pytest.raises(PhysicsRangeError):
-        solve_transient(layers, STANDARD_FIRE, 600.0, monitor_depths=[0.2])
-    with pytest.raises(PhysicsRangeError):
-        solve_transient(layers, STANDARD_FIRE, 600.0, report_times=[700.0])
-    with pytest.raises(PhysicsRangeError):
-        solve_transient(layers, FireExposure(iso834, emissivity_member=1.2), 600.0)
-    with pytest.raises(PhysicsRangeError):
-        solve_transient(layers, STANDARD_FIRE, 600.0, decay_insulation_rise=200.0)
+    cases = [
+        (lambda: solve_transient([layers[0], Layer.constant(0.0, 1.0, 1.0, 1.0)], STANDARD_FIRE,
+                                 60.0), "layers", 1),
+        (lambda: solve_transient(layers, STANDARD_FIRE, 600.0, monitor_depths=[0.05, 0.2]),
+         "monitor_depths", 1),
+        (lambda: solve_transient(layers, STANDARD_FIRE, 600.0, report_times=[700.0]),
+         "report_times", 0),
+        (lambda: FireExposure(iso834, emissivity_member=1.2), "emissivity_member", None),
+        (lambda: FireExposure(iso834, convection=-1.0), "convection", None),
+        (lambda: solve_transient(layers, STANDARD_FIRE, 600.0, decay_insulation_rise=200.0),
+         "decay_insulation_rise", None),
+        (lambda: solve_transient(layers, STANDARD_FIRE, 600.0, time_step=700.0), "time_step",
+         None),
+        (lambda: solve_transient(layers, STANDARD_FIRE, 600.0, cell_size=0.0), "cell_size",
+         None),
+        (lambda: solve_transient(layers, STANDARD_FIRE, 600.0, initial_temperature=-1.0),
+         "initial_temperature", None),
+    ]
+    for call, quantity, index in cases:
+        with pytest.raises(PhysicsRangeError) as raised:
+            call()
+        assert (raised.value.quantity, raised.value.index) == (quantity, index)

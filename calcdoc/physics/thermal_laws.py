@@ -46,8 +46,11 @@ _MOISTURE_LIMIT = 0.03
 _NORMAL_WEIGHT_DENSITY = (2000.0, 2600.0)
 
 
-def _celsius(temperature, quantity: str, extend: bool):
-    """Return (θ in °C as an array clipped to the law's range, whether the input was a scalar)."""
+def _celsius(temperature, extend: bool):
+    """Return (θ in °C as an array clipped to the law's range, whether the input was a scalar).
+
+    Every law names its temperature argument ``temperature``: that is the quantity an error
+    names."""
     kelvin = np.asarray(temperature, dtype=float)
     scalar = kelvin.ndim == 0
     theta = kelvin - ZERO_CELSIUS
@@ -58,7 +61,7 @@ def _celsius(temperature, quantity: str, extend: bool):
             bad = theta[(~np.isfinite(theta)) | (theta < low - _RANGE_TOLERANCE)
                         | (theta > high + _RANGE_TOLERANCE)]
             raise PhysicsRangeError(
-                quantity, float(bad.flat[0]) + ZERO_CELSIUS,
+                "temperature", float(bad.flat[0]) + ZERO_CELSIUS,
                 "a temperature from 293.15 K to 1473.15 K (20 °C to 1200 °C)")
     return np.clip(theta, low, high), scalar
 
@@ -107,7 +110,7 @@ def concrete_conductivity_upper(temperature, *, extend: bool = False):
     1. EN 1992-1-2:2004, Eurocode 2: Design of concrete structures, Part 1-2: Structural fire
        design, §3.3.3(2), eq. (3.7).
     """
-    theta, scalar = _celsius(temperature, "concrete temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     r = theta / 100.0
     return _out(2.0 - 0.2451 * r + 0.0107 * r * r, scalar)
 
@@ -148,7 +151,7 @@ def concrete_conductivity_lower(temperature, *, extend: bool = False):
     1. EN 1992-1-2:2004, Eurocode 2: Design of concrete structures, Part 1-2: Structural fire
        design, §3.3.3(2), eq. (3.8).
     """
-    theta, scalar = _celsius(temperature, "concrete temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     r = theta / 100.0
     return _out(1.36 - 0.136 * r + 0.0057 * r * r, scalar)
 
@@ -195,7 +198,7 @@ def concrete_conductivity(temperature, limit: str = "lower", *, extend: bool = F
         return concrete_conductivity_lower(temperature, extend=extend)
     if limit == "upper":
         return concrete_conductivity_upper(temperature, extend=extend)
-    raise PhysicsRangeError("conductivity limit", limit, "'lower' or 'upper'")
+    raise PhysicsRangeError("limit", limit, "'lower' or 'upper'")
 
 
 def concrete_specific_heat_dry(temperature, *, extend: bool = False):
@@ -237,7 +240,7 @@ def concrete_specific_heat_dry(temperature, *, extend: bool = False):
     ----------
     1. EN 1992-1-2:2004, §3.3.2(1) and Figure 3.6.
     """
-    theta, scalar = _celsius(temperature, "concrete temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     cp = np.where(theta <= 100.0, 900.0,
                   np.where(theta <= 200.0, 900.0 + (theta - 100.0),
                            np.where(theta <= 400.0, 1000.0 + (theta - 200.0) / 2.0, 1100.0)))
@@ -285,7 +288,7 @@ def concrete_specific_heat_peak(moisture_content: float) -> float:
     u = float(moisture_content)
     if not np.isfinite(u) or u < 0.0 or u > _MOISTURE_LIMIT + 1e-12:
         raise PhysicsRangeError(
-            "concrete moisture content", u,
+            "moisture_content", u,
             "u from 0 to 0.03, i.e. 0 to 3 % by weight (EN 1992-1-2 §3.3.2(2)); above 3 % "
             "explosive spalling must be assessed (EN 1992-1-2 §4.5.1(2))")
     if u <= 0.015:
@@ -341,7 +344,7 @@ def concrete_specific_heat(temperature, moisture_content: float = 0.015, *,
     2. EN 1992-1-2:2004, §4.5.1(2).
     """
     peak = concrete_specific_heat_peak(moisture_content)
-    theta, scalar = _celsius(temperature, "concrete temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     cp = np.where(theta <= 100.0, 900.0,
                   np.where(theta <= 115.0, peak,
                            np.where(theta <= 200.0, peak + (1000.0 - peak) * (theta - 115.0) / 85.0,
@@ -395,9 +398,9 @@ def concrete_density(temperature, density_20: float = 2300.0, *, extend: bool = 
     rho20 = float(density_20)
     low, high = _NORMAL_WEIGHT_DENSITY
     if not np.isfinite(rho20) or rho20 < low or rho20 > high:
-        raise PhysicsRangeError("concrete density at 20 °C", rho20,
+        raise PhysicsRangeError("density_20", rho20,
                                 "2000 to 2600 kg/m³ (normal-weight concrete, EN 1992-1-2 §3.3)")
-    theta, scalar = _celsius(temperature, "concrete temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     factor = np.where(theta <= 115.0, 1.0,
                       np.where(theta <= 200.0, 1.0 - 0.02 * (theta - 115.0) / 85.0,
                                np.where(theta <= 400.0, 0.98 - 0.03 * (theta - 200.0) / 200.0,
@@ -444,7 +447,7 @@ def steel_conductivity(temperature, *, extend: bool = False):
     1. EN 1993-1-2:2005, Eurocode 3: Design of steel structures, Part 1-2: General rules,
        Structural fire design, §3.4.1.3(1), eq. (3.3).
     """
-    theta, scalar = _celsius(temperature, "steel temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     return _out(np.where(theta < 800.0, 54.0 - 3.33e-2 * theta, 27.3), scalar)
 
 
@@ -488,7 +491,7 @@ def steel_specific_heat(temperature, *, extend: bool = False):
     ----------
     1. EN 1993-1-2:2005, §3.4.1.2(1), eq. (3.2).
     """
-    theta, scalar = _celsius(temperature, "steel temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     # The unused branches are evaluated too; keep their denominators away from zero.
     below_peak = 666.0 + 13002.0 / np.maximum(738.0 - theta, 3.0)
     above_peak = 545.0 + 17820.0 / np.maximum(theta - 731.0, 4.0)
@@ -531,7 +534,7 @@ def steel_density(temperature, *, extend: bool = False):
     ----------
     1. EN 1993-1-2:2005, §3.2.2(1).
     """
-    theta, scalar = _celsius(temperature, "steel temperature", extend)
+    theta, scalar = _celsius(temperature, extend)
     return _out(np.full_like(theta, 7850.0), scalar)
 
 
@@ -578,7 +581,7 @@ def concrete_law(conductivity_limit: str = "lower", moisture_content: float = 0.
     Reference: EN 1992-1-2:2004 §3.3.2 (specific heat, density), §3.3.3 (conductivity).
     """
     if conductivity_limit not in ("lower", "upper"):
-        raise PhysicsRangeError("conductivity limit", conductivity_limit, "'lower' or 'upper'")
+        raise PhysicsRangeError("conductivity_limit", conductivity_limit, "'lower' or 'upper'")
     concrete_specific_heat_peak(moisture_content)
     concrete_density(293.15, density_20)
     u = float(moisture_content)
@@ -590,9 +593,9 @@ def concrete_law(conductivity_limit: str = "lower", moisture_content: float = 0.
         conductivity=lambda T: conductivity(T, extend=True),
         density=lambda T: concrete_density(T, rho20, extend=True),
         specific_heat=lambda T: concrete_specific_heat(T, u, extend=True),
-        source=(f"EN 1992-1-2:2004 §3.3 ({conductivity_limit}-limit conductivity §3.3.3(2), "
-                f"specific heat with moisture peak at u = {100 * u:g} % §3.3.2(2), "
-                f"density from ρ(20 °C) = {rho20:g} kg/m³ §3.3.2(3))"),
+        # The source cites the clauses only; the options are data (``options``), which the
+        # caller prints with its own values.
+        source="EN 1992-1-2:2004, §3.3.2 and §3.3.3",
         temperature_range=LAW_TEMPERATURE_RANGE,
         breakpoints=tuple(ZERO_CELSIUS + t for t in (20.0, 100.0, 115.0, 200.0, 400.0, 1200.0)),
         options={"conductivity_limit": conductivity_limit, "moisture_content": u,
@@ -611,8 +614,7 @@ def carbon_steel_law() -> ThermalLaw:
         conductivity=lambda T: steel_conductivity(T, extend=True),
         density=lambda T: steel_density(T, extend=True),
         specific_heat=lambda T: steel_specific_heat(T, extend=True),
-        source="EN 1993-1-2:2005 §3.2.2 (unit mass), §3.4.1.2 (specific heat), "
-               "§3.4.1.3 (conductivity)",
+        source="EN 1993-1-2:2005, §3.2.2, §3.4.1.2 and §3.4.1.3",
         temperature_range=LAW_TEMPERATURE_RANGE,
         breakpoints=tuple(ZERO_CELSIUS + t for t in (20.0, 600.0, 735.0, 800.0, 900.0, 1200.0)),
     )
@@ -624,7 +626,7 @@ def constant_law(conductivity: float, density: float, specific_heat: float,
 
     Each value must be positive (raises :class:`~calcdoc.physics.PhysicsRangeError` otherwise).
     """
-    values = {"conductivity": conductivity, "density": density, "specific heat": specific_heat}
+    values = {"conductivity": conductivity, "density": density, "specific_heat": specific_heat}
     for quantity, value in values.items():
         if not np.isfinite(value) or value <= 0.0:
             raise PhysicsRangeError(quantity, value, "a positive finite value")
@@ -651,5 +653,5 @@ def make_law(name: str, **options) -> ThermalLaw:
     try:
         factory = LAWS[name]
     except KeyError:
-        raise PhysicsRangeError("thermal law", name, "one of " + ", ".join(sorted(LAWS))) from None
+        raise PhysicsRangeError("name", name, "one of " + ", ".join(sorted(LAWS))) from None
     return factory(**options)

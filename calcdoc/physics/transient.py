@@ -119,6 +119,15 @@ class FireExposure:
     emissivity_fire: float = 1.0
     configuration_factor: float = 1.0
 
+    def __post_init__(self):
+        # Checked here so that an error names the parameter as written to this constructor.
+        if not (np.isfinite(self.convection) and self.convection >= 0.0):
+            raise PhysicsRangeError("convection", self.convection, "a coefficient ≥ 0 W/(m²·K)")
+        for name in ("emissivity_member", "emissivity_fire", "configuration_factor"):
+            value = getattr(self, name)
+            if not 0.0 <= value <= 1.0:
+                raise PhysicsRangeError(name, value, "0 to 1")
+
 
 @dataclass(frozen=True)
 class HeldTemperature:
@@ -143,14 +152,6 @@ class Mesh:
     @property
     def cells(self) -> int:
         return sum(self.cells_per_layer)
-
-    def statement(self) -> str:
-        """Return one sentence a checker can reproduce the computation from."""
-        cells = ", ".join(f"{n} × {1000 * dx:.4g} mm" for n, dx in
-                          zip(self.cells_per_layer, self.cell_sizes))
-        return (f"cell-centred finite volumes ({cells}), backward Euler time steps of "
-                f"{self.time_step:g} s, Picard iteration to {self.tolerance:g} K, "
-                f"properties tabulated every {self.table_spacing:g} K")
 
 
 @dataclass(frozen=True)
@@ -247,8 +248,9 @@ class _Tables:
             for quantity, values in (("conductivity", k), ("volumetric heat capacity", rc)):
                 if not np.all(np.isfinite(values)) or np.any(values <= 0.0):
                     bad = values[~(np.isfinite(values) & (values > 0.0))][0]
-                    raise PhysicsRangeError(f"layer {index + 1} {quantity}", float(bad),
-                                            "positive finite values over the temperatures met")
+                    raise PhysicsRangeError("layers", float(bad), f"a law giving a positive "
+                                            f"finite {quantity} over the temperatures met",
+                                            index=index)
             enthalpy = cumulative_trapezoid(rc, grid, initial=0.0)
             offset = index * self.span
             grids.append(grid + offset)
@@ -277,7 +279,7 @@ def mesh_for(layers: Sequence[Layer], cell_size: float = DEFAULT_CELL_SIZE,
              min_cells: int = DEFAULT_MIN_CELLS) -> tuple[int, ...]:
     """Return the number of cells in each layer: at least ``min_cells``, cells ≤ ``cell_size`` [m]."""
     if not cell_size > 0.0:
-        raise PhysicsRangeError("cell size", cell_size, "a positive length in m")
+        raise PhysicsRangeError("cell_size", cell_size, "a positive length in m")
     return tuple(max(int(min_cells), math.ceil(layer.thickness / cell_size - 1e-9))
                  for layer in layers)
 
@@ -313,9 +315,9 @@ def _time_grid(duration: float, time_step: float, forced: Sequence[float]) -> np
     return grid[keep]
 
 
-def _check(quantity: str, value: float, ok: bool, expected: str) -> None:
+def _check(quantity: str, value: float, ok: bool, expected: str, index: int | None = None) -> None:
     if not ok:
-        raise PhysicsRangeError(quantity, value, expected)
+        raise PhysicsRangeError(quantity, value, expected, index)
 
 
 def solve_transient(
@@ -419,65 +421,59 @@ def solve_transient(
        interface conductivity, implicit scheme).
     """
     layers = tuple(layers)
-    _check("number of layers", len(layers), len(layers) >= 1, "at least one layer")
+    _check("layers", len(layers), len(layers) >= 1, "at least one layer")
     for i, layer in enumerate(layers):
-        _check(f"layer {i + 1} thickness", layer.thickness,
-               np.isfinite(layer.thickness) and layer.thickness > 0.0, "a positive length in m")
+        _check("layers", layer.thickness, np.isfinite(layer.thickness) and layer.thickness > 0.0,
+               "a layer of positive thickness in m", i)
     _check("duration", duration, np.isfinite(duration) and duration > 0.0, "a positive time in s")
-    _check("time step", time_step, np.isfinite(time_step) and 0.0 < time_step <= duration,
+    _check("time_step", time_step, np.isfinite(time_step) and 0.0 < time_step <= duration,
            f"a positive time in s, at most the duration {duration:g} s")
-    _check("initial temperature", initial_temperature,
+    _check("initial_temperature", initial_temperature,
            np.isfinite(initial_temperature) and initial_temperature > 0.0, "a temperature > 0 K")
     ambient = initial_temperature if ambient_temperature is None else float(ambient_temperature)
-    _check("ambient temperature", ambient, np.isfinite(ambient) and ambient > 0.0,
+    _check("ambient_temperature", ambient, np.isfinite(ambient) and ambient > 0.0,
            "a temperature > 0 K")
-    _check("unexposed convection", unexposed_convection, unexposed_convection >= 0.0,
+    _check("unexposed_convection", unexposed_convection, unexposed_convection >= 0.0,
            "a coefficient ≥ 0 W/(m²·K)")
-    _check("unexposed emissivity", unexposed_emissivity, 0.0 <= unexposed_emissivity <= 1.0,
+    _check("unexposed_emissivity", unexposed_emissivity, 0.0 <= unexposed_emissivity <= 1.0,
            "0 to 1")
-    _check("insulation rise", insulation_rise, insulation_rise > 0.0, "a rise > 0 K")
+    _check("insulation_rise", insulation_rise, insulation_rise > 0.0, "a rise > 0 K")
     if (decay_insulation_rise is None) != (decay_from is None):
-        raise PhysicsRangeError("decay insulation rise", decay_insulation_rise,
+        raise PhysicsRangeError("decay_insulation_rise", decay_insulation_rise,
                                 "given together with the time it applies from")
     if decay_insulation_rise is not None:
-        _check("decay insulation rise", decay_insulation_rise, decay_insulation_rise > 0.0,
+        _check("decay_insulation_rise", decay_insulation_rise, decay_insulation_rise > 0.0,
                "a rise > 0 K")
-        _check("decay phase start", decay_from, decay_from >= 0.0, "a time ≥ 0 s")
-    if isinstance(exposed, FireExposure):
-        _check("exposed convection", exposed.convection, exposed.convection >= 0.0,
-               "a coefficient ≥ 0 W/(m²·K)")
-        for name, value in (("member emissivity", exposed.emissivity_member),
-                            ("fire emissivity", exposed.emissivity_fire),
-                            ("configuration factor", exposed.configuration_factor)):
-            _check(name, value, 0.0 <= value <= 1.0, "0 to 1")
-    elif not isinstance(exposed, HeldTemperature):
-        raise PhysicsRangeError("exposed boundary", type(exposed).__name__,
+        _check("decay_from", decay_from, decay_from >= 0.0, "a time ≥ 0 s")
+    if not isinstance(exposed, (FireExposure, HeldTemperature)):  # a FireExposure checks itself
+        raise PhysicsRangeError("exposed", type(exposed).__name__,
                                 "FireExposure or HeldTemperature")
     total = float(sum(layer.thickness for layer in layers))
     monitor_depths = np.asarray(monitor_depths, dtype=float).reshape(-1)
-    for depth in monitor_depths:
-        _check("monitor depth", depth, 0.0 <= depth <= total * (1 + 1e-12),
-               f"a depth from 0 to {total:g} m (the total thickness)")
+    for j, depth in enumerate(monitor_depths):
+        _check("monitor_depths", depth, 0.0 <= depth <= total * (1 + 1e-12),
+               f"a depth from 0 to {total:g} m (the total thickness)", j)
     report_times = np.asarray(report_times, dtype=float).reshape(-1)
-    for t in report_times:
-        _check("report time", t, 0.0 <= t <= duration * (1 + 1e-12),
-               f"a time from 0 to the duration {duration:g} s")
+    for j, t in enumerate(report_times):
+        _check("report_times", t, 0.0 <= t <= duration * (1 + 1e-12),
+               f"a time from 0 to the duration {duration:g} s", j)
 
     # ---- mesh
     if cells_per_layer is None:
         cells = mesh_for(layers, cell_size, min_cells)
     else:
         cells = tuple(int(n) for n in cells_per_layer)
-        _check("cells per layer", len(cells), len(cells) == len(layers) and min(cells) >= 1,
+        _check("cells_per_layer", len(cells), len(cells) == len(layers) and min(cells) >= 1,
                "one positive count per layer")
     total_cells = sum(cells)
-    _check("cell size", cell_size if cells_per_layer is None else total_cells,
+    _check("cell_size" if cells_per_layer is None else "cells_per_layer",
+           cell_size if cells_per_layer is None else total_cells,
            total_cells <= MAX_CELLS, f"a mesh of at most {MAX_CELLS} cells (this one has "
            f"{total_cells})")
     steps = float(duration) / float(time_step)
-    _check("time step", time_step, steps <= MAX_TIME_STEPS,
+    _check("time_step", time_step, steps <= MAX_TIME_STEPS,
            f"at most {MAX_TIME_STEPS} steps over the duration (this one takes {steps:.0f})")
-    _check("time step", time_step, steps * total_cells <= MAX_CELL_STEPS,
+    _check("time_step", time_step, steps * total_cells <= MAX_CELL_STEPS,
            f"at most {MAX_CELL_STEPS:.0e} cell-steps ({total_cells} cells × {steps:.0f} steps "
            "here): a larger time step or cell size")
     dx = np.concatenate([np.full(n, layer.thickness / n) for n, layer in zip(cells, layers)])
@@ -503,7 +499,7 @@ def solve_transient(
         held = True
         h_c = rad = 0.0
     if not np.all(np.isfinite(boundary)) or np.any(boundary <= 0.0):
-        raise PhysicsRangeError("exposed boundary temperature",
+        raise PhysicsRangeError("exposed",
                                 float(boundary[~(np.isfinite(boundary) & (boundary > 0))][0]),
                                 "finite temperatures > 0 K at every step")
     h_cu = float(unexposed_convection)
@@ -725,7 +721,7 @@ def insulation_time(times, rise, threshold: float, decay_threshold: float | None
     t = np.asarray(times, dtype=float)
     d = np.asarray(rise, dtype=float)
     if t.shape != d.shape or t.ndim != 1 or t.size < 1:
-        raise PhysicsRangeError("insulation history", t.shape, "times and rises of equal length")
+        raise PhysicsRangeError("rise", t.shape, "times and rises of equal length")
     if decay_threshold is not None and decay_from is not None and t[0] < decay_from < t[-1] \
             and not np.any(t == decay_from):
         j = int(np.searchsorted(t, decay_from))

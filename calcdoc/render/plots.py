@@ -164,6 +164,9 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
     def sy(v):
         return ax_y + bx_y * np.asarray(v, dtype=float)
 
+    def words(label) -> str:  # a label may be a Phrase with numbers in it
+        return fill(label, sig, system)
+
     width, height = data.size
     with figure(data.key, width, height) as (fig, ax):
         for band in data.bands:
@@ -171,7 +174,7 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
             ax.axvspan(float(sx(band.x0)), float(sx(band.x1)), edgecolor="#777777",
                        linewidth=0.6, zorder=0, **shade)
             if band.label:
-                ax.text(float(sx((band.x0 + band.x1) / 2)), 0.5, band.label,
+                ax.text(float(sx((band.x0 + band.x1) / 2)), 0.5, words(band.label),
                         transform=ax.get_xaxis_transform(), rotation=90, ha="center",
                         va="center", fontsize=6.5, zorder=3,
                         bbox={"facecolor": "white", "edgecolor": "none", "pad": 1.0})
@@ -201,14 +204,14 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
             ax.plot(x, y, color=COLOURS[line.style % len(COLOURS)],
                     linestyle=LINE_STYLES[line.style % len(LINE_STYLES)],
                     marker="o" if line.marker else None, markersize=3, zorder=4,
-                    label=line.label or None)
+                    label=words(line.label) or None)
             labelled = labelled or bool(line.label)
         for mark in data.marks:
             style = LINE_STYLES[mark.style % len(LINE_STYLES)]
             if mark.axis == "y":
-                mark_horizontal(ax, float(sy(mark.at)), mark.label, style)
+                mark_horizontal(ax, float(sy(mark.at)), words(mark.label), style)
             else:
-                mark_vertical(ax, float(sx(mark.at)), mark.label, style)
+                mark_vertical(ax, float(sx(mark.at)), words(mark.label), style)
         for point in data.points:
             px, py = float(sx(point.x)), float(sy(point.y))
             ax.plot([px], [py], marker="X", markersize=8, color=COLOURS[1], linestyle="none",
@@ -216,7 +219,7 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
             if point.label:
                 # The words sit in the free corner away from the data, with a leader line, so
                 # that they cover nothing they name.
-                ax.annotate(point.label, xy=(px, py), xytext=(0.98, 0.98),
+                ax.annotate(words(point.label), xy=(px, py), xytext=(0.98, 0.98),
                             textcoords="axes fraction", ha="right", va="top", fontsize=7,
                             arrowprops={"arrowstyle": "-", "color": "#555555",
                                         "linewidth": 0.6},
