@@ -25,6 +25,7 @@ fuzz: system $(VENV)/.installed
 bench: system $(VENV)/.installed
 	$(PY) bench/bench_build.py
 	$(PY) bench/bench_transient.py
+	$(PY) bench/bench_bridge.py
 
 system:
 	@missing=""; \

@@ -92,10 +92,14 @@ def cmd_kinds(args) -> int:
     from calcdoc.kinds import registry
     from calcdoc.project import load_named_values
     kinds = registry()
-    if args.schema:
-        from calcdoc.schema import sheet_schema
-        print(json.dumps(sheet_schema(), indent=1, ensure_ascii=False))
-        return 0
+    if args.json:
+        chosen = [kinds[args.kind]] if args.kind in kinds else list(kinds.values())
+        if args.kind is not None and args.kind not in kinds:
+            chosen = []
+        if chosen:
+            docs = [k.describe() for k in chosen]
+            print(json.dumps(docs[0] if args.kind else docs, indent=1, ensure_ascii=False))
+            return 0
     if args.kind is None:
         print("Kinds:")
         for kind in kinds.values():
@@ -136,6 +140,108 @@ def cmd_kinds(args) -> int:
         print(f"  {r['name']} [{r['unit']}]: {r['meaning']}")
     if kind.caution:
         print(f"\nCaution: {kind.caution}")
+    return 0
+
+
+def _library(project: str | None) -> dict:
+    from calcdoc.project import Collector, LIBRARY_DIR, builtin_material_files, load_materials
+    from calcdoc.project import project_files
+    col = Collector()
+    materials = load_materials(builtin_material_files(), LIBRARY_DIR, col)
+    if project:
+        files = project_files(project)
+        if files.exists("materials.yaml"):
+            materials.update(load_materials(["materials.yaml"], None, col, files))
+    if col.errors:
+        raise InputErrors(col.errors)
+    return materials
+
+
+def _material_document(entry: dict) -> dict:
+    """A material as plain data: each property in SI with its unit, source and confirmation."""
+    from calcdoc.provenance import MATERIAL_UNITS
+    properties = {}
+    for prop, unit in MATERIAL_UNITS.items():
+        if prop in entry:
+            cited = entry.get("sources", {}).get(prop, {})
+            properties[prop] = {"si": entry[prop], "si_unit": unit,
+                                "source": cited.get("source", entry.get("source", "")),
+                                "confirmed": cited.get("confirmed", entry.get("confirmed"))}
+    doc = {"name": entry["name"], "title": entry.get("title", entry["name"]),
+           "category": entry.get("category", ""), "source": entry.get("source", ""),
+           "confirmed": entry.get("confirmed"), "properties": properties}
+    if "conductivity_curve" in entry:
+        cited = entry.get("sources", {}).get("conductivity_curve", {})
+        doc["conductivity_curve"] = {"points_si": entry["conductivity_curve"],
+                                     "units": ["K", "W/(m*K)"],
+                                     "source": cited.get("source", entry.get("source", "")),
+                                     "confirmed": cited.get("confirmed", entry.get("confirmed"))}
+    if entry.get("law"):
+        doc["law"] = entry["law"]
+    return doc
+
+
+def cmd_materials(args) -> int:
+    from calcdoc.data import Value
+    from calcdoc.kinds.base import did_you_mean
+    from calcdoc.provenance import MATERIAL_UNITS
+    from calcdoc.render.printed import print_value
+    materials = _library(args.project)
+    if args.name is not None and args.name not in materials:
+        hint = did_you_mean(args.name, materials)
+        print(f"calcdoc: error: unknown material '{args.name}' (expected a material of the "
+              f"library, see calcdoc materials, got {args.name!r})"
+              + (f"; hint: {hint}" if hint else ""), file=sys.stderr)
+        return 2
+    chosen = [materials[args.name]] if args.name else sorted(
+        materials.values(), key=lambda m: (m.get("category", ""), m["name"]))
+    if args.json:
+        docs = [_material_document(m) for m in chosen]
+        print(json.dumps(docs[0] if args.name else docs, indent=1, ensure_ascii=False))
+        return 0
+
+    def shown(entry, prop):
+        return print_value(Value(entry[prop], MATERIAL_UNITS[prop], given=True), 3).text
+
+    if args.name is None:
+        category = None
+        for m in chosen:
+            if m.get("category", "") != category:
+                category = m.get("category", "")
+                print(f"\n{category or 'other'}:")
+            mark = "" if m.get("confirmed") is not False else "  [to confirm]"
+            lam = shown(m, "conductivity") if "conductivity" in m else (
+                "law" if m.get("law") else "—")
+            print(f"  {m['name']:<28} {lam:<16} {m.get('title', '')}{mark}")
+        print("\nEach value with its source: calcdoc materials NAME; "
+              "[to confirm]: recalled, not yet checked against its printed source.")
+        return 0
+    m = chosen[0]
+    print(f"{m['name']} — {m.get('title', '')}" + (f" ({m['category']})"
+                                                   if m.get("category") else ""))
+    for prop in MATERIAL_UNITS:
+        if prop in m:
+            cited = m.get("sources", {}).get(prop, {})
+            flag = "" if cited.get("confirmed", m.get("confirmed")) is not False else \
+                " [to confirm]"
+            print(f"  {prop.replace('_', ' ')}: {shown(m, prop)}")
+            print(f"      source: {cited.get('source', m.get('source', ''))}{flag}")
+    if "conductivity_curve" in m:
+        points = ", ".join(
+            f"{print_value(Value(t, 'K', temperature='absolute', given=True), 3).text}: "
+            f"{print_value(Value(k, 'W/(m*K)', given=True), 3).text}"
+            for t, k in m["conductivity_curve"])
+        print(f"  conductivity against temperature: {points}")
+    if m.get("law"):
+        print(f"  temperature-dependent law: {m['law']}")
+    print(f"  source: {m.get('source', '')}")
+    return 0
+
+
+def cmd_schema(args) -> int:
+    from calcdoc.schema import project_schema, review_schema, sheet_schema
+    made = {"sheet": sheet_schema, "project": project_schema, "review": review_schema}
+    print(json.dumps(made[args.file](), indent=1, ensure_ascii=False))
     return 0
 
 
@@ -195,9 +301,18 @@ def parser() -> argparse.ArgumentParser:
     c.set_defaults(func=cmd_check)
     k = sub.add_parser("kinds", help="list kinds, or one kind's inputs and results")
     k.add_argument("kind", nargs="?")
-    k.add_argument("--schema", action="store_true",
-                   help="print the JSON Schema of a sheet file, generated from the kinds")
+    k.add_argument("--json", action="store_true",
+                   help="every kind (or one) with its inputs and results, as JSON")
     k.set_defaults(func=cmd_kinds)
+    sc = sub.add_parser("schema", help="print the JSON Schema of a sheet, project.yaml or "
+                        "review.yaml, for editors")
+    sc.add_argument("file", nargs="?", choices=("sheet", "project", "review"), default="sheet")
+    sc.set_defaults(func=cmd_schema)
+    mt = sub.add_parser("materials", help="list the materials library, or show one material")
+    mt.add_argument("name", nargs="?")
+    mt.add_argument("--json", action="store_true", help="print the materials as JSON")
+    mt.add_argument("--project", help="include a project's own materials.yaml")
+    mt.set_defaults(func=cmd_materials)
     n = sub.add_parser("new", help="write a small starter project")
     n.add_argument("dir")
     n.set_defaults(func=cmd_new)

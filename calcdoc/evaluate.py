@@ -135,7 +135,26 @@ def evaluate_project(project: Project, errors: list[InputError] | None = None) -
     if errors:
         raise InputErrors(errors)
     sheets = [EvaluatedSheet(s, [done[b.key] for b in s.blocks]) for s in project.sheets]
-    return Package(project, sheets)
+    package = Package(project, sheets)
+    _check_confirmations(package)
+    return package
+
+
+def _check_confirmations(package: Package) -> None:
+    """A confirmation must name a value the package uses that needs one (a typo would
+    otherwise leave the real value unconfirmed, unnoticed)."""
+    from calcdoc.provenance import values_to_confirm
+    project = package.project
+    if not project.confirmations:
+        return
+    keys = [item.key for item in values_to_confirm(package)]
+    errors = [InputError(c.loc, "confirmations.value", "confirms a value the package does not "
+                         "use or that needs no confirmation", "one of " + (", ".join(keys)
+                                                                           or "none"),
+                         repr(c.value), did_you_mean(c.value, keys))
+              for c in project.confirmations if c.value not in keys]
+    if errors:
+        raise InputErrors(errors)
 
 
 class _DependsOnFailed(Exception):

@@ -244,8 +244,10 @@ def number_latex(value) -> str:
 
 def names_in(tree: ast.AST) -> list[str]:
     """Return the operand names of an expression in order of first appearance (no constants)."""
+    functions = {id(n.func) for n in ast.walk(tree) if isinstance(n, ast.Call)}
     found = sorted((n for n in ast.walk(tree) if isinstance(n, ast.Name)
-                    and n.id not in CONSTANTS), key=lambda n: (n.lineno, n.col_offset))
+                    and n.id not in CONSTANTS and id(n) not in functions),
+                   key=lambda n: (n.lineno, n.col_offset))
     return list(dict.fromkeys(n.id for n in found))
 
 

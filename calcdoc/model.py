@@ -9,7 +9,7 @@ from typing import Any
 from calcdoc.errors import Location
 from calcdoc.located import Node
 
-__all__ = ["Revision", "Signature", "CheckSpec", "BlockSpec", "SheetSpec", "ReviewComment",
+__all__ = ["Revision", "Signature", "Confirmation", "CheckSpec", "BlockSpec", "SheetSpec", "ReviewComment",
            "Project", "CheckResult", "EvaluatedBlock", "EvaluatedSheet", "Package"]
 
 
@@ -81,6 +81,17 @@ class ReviewComment:
 
 
 @dataclass
+class Confirmation:
+    """A library value the project checked against its printed source."""
+
+    value: str
+    by: str
+    date: str
+    against: str
+    loc: Location
+
+
+@dataclass
 class Project:
     root: Path | None
     number: str
@@ -101,6 +112,8 @@ class Project:
     input_files: list[str] = field(default_factory=list)  # names inside the project
     files: Any = None  # calcdoc.sources.ProjectFiles the project was read from
     unreadable: set[str] = field(default_factory=set)  # sheets and blocks that did not load
+    confirmations: list[Confirmation] = field(default_factory=list)
+    project_materials: set[str] = field(default_factory=set)  # names the project defines
 
     @property
     def revision(self) -> Revision:

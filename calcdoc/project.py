@@ -17,9 +17,15 @@ from calcdoc.errors import InputError, InputErrors, Location
 from calcdoc.kinds import registry
 from calcdoc.kinds.base import did_you_mean
 from calcdoc.located import Node, is_date, load_yaml, plain
-from calcdoc.model import (BlockSpec, CheckSpec, Project, ReviewComment, Revision, SheetSpec,
-                           Signature)
+from calcdoc.model import (BlockSpec, CheckSpec, Confirmation, Project, ReviewComment, Revision,
+                           SheetSpec, Signature)
 from calcdoc.sources import DiskFiles, FileProblem, ProjectFiles
+from calcdoc.structure import (BLOCK, CHECK, PROJECT_FILE, REVIEW_FILE, SHEET_FILE, read,
+                               read_checked)
+from calcdoc.structure import _value as structure_value
+
+PROJECT_KEYS = {k.name: k for k in PROJECT_FILE}
+REVIEW_KEYS = {k.name: k for k in REVIEW_FILE}
 from calcdoc.units import ABSOLUTE, UnitProblem, parse_quantity_text
 
 __all__ = ["load_project", "read_project", "load_materials", "load_named_values", "LIBRARY_DIR",
@@ -27,8 +33,6 @@ __all__ = ["load_project", "read_project", "load_materials", "load_named_values"
 
 LIBRARY_DIR = Path(__file__).parent / "materials"
 
-_ID = re.compile(r"^[a-z0-9_-]+$")
-_SHEET_ID = re.compile(r"^[A-Za-z0-9_-]+$")
 _MATERIAL_PROPERTIES = {"conductivity": "W/(m*K)", "density": "kg/m^3",
                         "specific_heat": "J/(kg*K)", "emissivity": "1",
                         "resistance": "m^2*K/W", "vapour_resistance_factor": "1",
@@ -361,18 +365,6 @@ def builtin_material_files() -> list[Path]:
 # ----------------------------------------------------------------------------- project
 
 
-_PROJECT_KEYS = ("project", "package", "revisions", "units", "precision")
-_PROJECT_BLOCK = ("number", "title", "client", "site", "organisation")
-_PACKAGE_KEYS = ("number", "title", "sheets")
-_REVISION_KEYS = ("rev", "date", "purpose", "by", "checked", "approved")
-_SHEET_KEYS = ("id", "title", "signoff", "notes", "blocks")
-_BLOCK_KEYS = ("id", "kind", "title", "inputs", "checks", "display", "notes")
-_CHECK_KEYS = ("result", "at_most", "at_least", "source")
-_SIGN_ROLES = ("prepared", "checked", "approved")
-_SIGN_KEYS = ("by", "date", "rev")
-_REVIEW_KEYS = ("on", "by", "date", "text", "status", "response")
-
-
 def load_project(folder: str | Path | ProjectFiles) -> Project:
     """Return the Project in ``folder``; raise InputErrors listing every problem found."""
     project, errors = read_project(folder)
@@ -396,31 +388,22 @@ def read_project(folder: str | Path | ProjectFiles) -> tuple[Project | None, lis
     tree = _read(files, "project.yaml", col)
     if tree is None:
         return None, col.errors
-    col.keys(tree, _PROJECT_KEYS, "", required=("project", "package", "revisions"))
-    get = tree.value.get if tree.is_map else (lambda k: None)
+    data = read(tree, PROJECT_FILE, "", col, raw=("revisions",)) or {}
+    about = data.get("project") or {}
+    package = data.get("package") or {}
+    revisions = _revisions(data.get("revisions"), col)
+    units = data.get("units") or "SI"
+    precision = data.get("precision") or 3
+    sheets_node = tree.value.get("package").get("sheets") if tree.is_map and \
+        tree.value.get("package") is not None and tree.value["package"].is_map else None
 
-    pnode = get("project") or Node({}, tree.loc)
-    col.keys(pnode, _PROJECT_BLOCK, "project", required=("number", "title"))
-    pv = pnode.value if pnode.is_map else {}
-    knode = get("package") or Node({}, tree.loc)
-    col.keys(knode, _PACKAGE_KEYS, "package", required=("number", "title"))
-    kv = knode.value if knode.is_map else {}
-
-    revisions = _revisions(get("revisions"), col)
-    units = col.text(get("units"), "units", "SI")
-    if units not in ("SI", "US"):
-        col.error(get("units").loc, "units", "unknown unit system", "SI | US", repr(units))
-        units = "SI"
-    precision = get("precision").value if get("precision") else 3
-    if isinstance(precision, bool) or not isinstance(precision, int) or not 2 <= precision <= 8:
-        col.error(get("precision").loc, "precision", "precision out of range",
-                  "a whole number of significant figures from 2 to 8", _shown(get("precision")))
-        precision = 3
-
-    sheet_names = _sheet_names(files, kv.get("sheets"), col)
+    sheet_names = _sheet_names(files, sheets_node, col)
     materials = load_materials(builtin_material_files(), LIBRARY_DIR, col)
+    project_materials: set[str] = set()
     if files.exists("materials.yaml"):
-        materials.update(load_materials(["materials.yaml"], None, col, files))
+        own = load_materials(["materials.yaml"], None, col, files)
+        project_materials = set(own)
+        materials.update(own)
     named = load_named_values()
 
     known_kinds = registry()
@@ -452,18 +435,24 @@ def read_project(folder: str | Path | ProjectFiles) -> tuple[Project | None, lis
                           f"'{c.on}'", "an existing SHEET or SHEET.block", repr(c.on),
                           did_you_mean(c.on, targets))
 
-    project = Project(root=getattr(files, "root", None), number=col.text(pv.get("number"),
-                                                                         "project.number"),
-                      title=col.text(pv.get("title"), "project.title"),
-                      client=col.text(pv.get("client"), "project.client"),
-                      site=col.text(pv.get("site"), "project.site"),
-                      organisation=col.text(pv.get("organisation"), "project.organisation"),
-                      package_number=col.text(kv.get("number"), "package.number"),
-                      package_title=col.text(kv.get("title"), "package.title"),
+    project = Project(root=getattr(files, "root", None), number=about.get("number") or "",
+                      title=about.get("title") or "", client=about.get("client") or "",
+                      site=about.get("site") or "", organisation=about.get("organisation") or "",
+                      package_number=package.get("number") or "",
+                      package_title=package.get("title") or "",
                       revisions=revisions, units=units, precision=precision, sheets=sheets,
                       materials=materials, named=named, reviewer=reviewer, comments=comments,
-                      input_files=input_files, files=files, unreadable=unreadable)
+                      input_files=input_files, files=files, unreadable=unreadable,
+                      confirmations=_confirmations(tree, data, col),
+                      project_materials=project_materials)
     return project, col.errors
+
+
+def _confirmations(tree: Node, data: dict, col: Collector) -> list[Confirmation]:
+    items = data.get("confirmations") or []
+    nodes = tree.value["confirmations"].value if items else []
+    return [Confirmation(c["value"], c["by"], c["date"], c["against"], node.loc)
+            for c, node in zip(items, nodes) if c]
 
 
 def _under(key: str, unreadable: set[str]) -> bool:
@@ -473,22 +462,8 @@ def _under(key: str, unreadable: set[str]) -> bool:
 def _revisions(node: Node | None, col: Collector) -> list[Revision]:
     if node is None:
         return [Revision("-", "", "")]
-    if not node.is_list or not node.value:
-        col.error(node.loc, "revisions", "revisions must be a list, oldest first",
-                  "a list of {rev, date, purpose, by, checked, approved}", _shown(node))
-        return [Revision("-", "", "")]
-    out = []
-    for i, item in enumerate(node.value):
-        where = f"revisions[{i}]"
-        if not col.keys(item, _REVISION_KEYS, where, required=("rev", "date", "purpose")):
-            continue
-        v = item.value
-        out.append(Revision(rev=col.text(v.get("rev"), f"{where}.rev"),
-                            date=col.date(v.get("date"), f"{where}.date"),
-                            purpose=col.text(v.get("purpose"), f"{where}.purpose"),
-                            by=col.text(v.get("by"), f"{where}.by"),
-                            checked=col.text(v.get("checked"), f"{where}.checked"),
-                            approved=col.text(v.get("approved"), f"{where}.approved")))
+    items = structure_value(PROJECT_KEYS["revisions"], node, "revisions", col) or []
+    out = [Revision(**{k: v or "" for k, v in item.items()}) for item in items if item]
     return out or [Revision("-", "", "")]
 
 
@@ -531,27 +506,17 @@ def _sheet(files: ProjectFiles, name: str, col: Collector, kinds,
     if tree is None:
         unreadable.add(stem)
         return None
-    if not col.keys(tree, _SHEET_KEYS, stem, required=("title", "blocks")):
+    id_node = tree.value.get("id") if tree.is_map else None
+    sheet_id = _text(id_node, stem) if id_node is not None and id_node.is_scalar else stem
+    data = read(tree, SHEET_FILE, sheet_id, col, raw=("blocks",))
+    if data is None or data.get("id") is None and id_node is not None:
         unreadable.add(stem)
         return None
     v = tree.value
-    sheet_id = col.text(v.get("id"), "id", stem) or stem
-    if not _SHEET_ID.match(sheet_id):
-        col.error(v["id"].loc, "id", "sheet id has characters outside [A-Za-z0-9_-]",
-                  "[A-Za-z0-9_-]+", repr(sheet_id))
-        unreadable.add(stem)
-        return None
-    signoff = {}
-    snode = v.get("signoff")
-    if snode is not None and col.keys(snode, _SIGN_ROLES, f"{sheet_id}.signoff"):
-        for role, sig in snode.value.items():
-            where = f"{sheet_id}.signoff.{role}"
-            if role in _SIGN_ROLES and col.keys(sig, _SIGN_KEYS, where,
-                                                required=("by", "date", "rev")):
-                sv = sig.value
-                signoff[role] = Signature(role, col.text(sv.get("by"), f"{where}.by"),
-                                          col.date(sv.get("date"), f"{where}.date"),
-                                          col.text(sv.get("rev"), f"{where}.rev"))
+    sheet_id = data.get("id") or stem
+    signoff = {role: Signature(role, sig["by"] or "", sig["date"] or "", sig["rev"] or "")
+               for role, sig in (data.get("signoff") or {}).items()
+               if sig and sig.get("by") and sig.get("date") and sig.get("rev")}
     blocks = []
     bnode = v.get("blocks")
     seen: dict[str, Location] = {}
@@ -574,9 +539,8 @@ def _sheet(files: ProjectFiles, name: str, col: Collector, kinds,
                 continue
             seen[block.id] = block.loc
             blocks.append(block)
-    return SheetSpec(id=sheet_id, title=col.text(v.get("title"), f"{sheet_id}.title"),
-                     path=Path(name), relpath=name, signoff=signoff,
-                     notes=col.text(v.get("notes"), f"{sheet_id}.notes"), blocks=blocks,
+    return SheetSpec(id=sheet_id, title=data.get("title") or "", path=Path(name), relpath=name,
+                     signoff=signoff, notes=data.get("notes") or "", blocks=blocks,
                      loc=tree.loc)
 
 
@@ -598,20 +562,17 @@ def _block(node: Node, sheet_id: str, index: int, col: Collector, kinds) -> Bloc
         col.error(kind_node.loc, f"{sheet_id}.{block_id}.kind", f"unknown kind '{kind_name}'",
                   "one of " + ", ".join(kinds), repr(kind_name), did_you_mean(kind_name, kinds))
         return None  # its other keys cannot be judged without the kind
-    allowed = _BLOCK_KEYS
+    keys = BLOCK.keys
+    extra: tuple = ()
     if declared is not None and declared.inputs_at_block_level:
-        allowed = tuple(k for k in _BLOCK_KEYS if k != "inputs") + tuple(
-            f.name for f in declared.inputs)
-    if not col.keys(node, allowed, where, required=("id", "kind")):
+        keys = tuple(k for k in BLOCK.keys if k.name != "inputs")
+        extra = tuple(f.name for f in declared.inputs)
+    before = len(col.errors)
+    data = read(node, keys, where, col, extra=extra, raw=("checks", "display", "inputs"))
+    if data is None or not data.get("id") or len(col.errors) > before:
         return None
     v = node.value
-    block_id = col.text(v.get("id"), f"{where}.id")
-    if not block_id:
-        return None
-    if not _ID.match(block_id):
-        col.error(v["id"].loc, f"{where}.id", "block id has characters outside [a-z0-9_-]",
-                  "[a-z0-9_-]+", repr(block_id))
-        return None
+    block_id = data["id"]
     checks = _checks(v.get("checks"), f"{sheet_id}.{block_id}", col)
     display = {}
     dnode = v.get("display")
@@ -631,68 +592,55 @@ def _block(node: Node, sheet_id: str, index: int, col: Collector, kinds) -> Bloc
         col.error(inputs.loc, f"{sheet_id}.{block_id}.inputs", "not a mapping",
                   "a mapping of input names to values", _shown(inputs))
         return None
-    return BlockSpec(id=block_id, kind=kind_name, title=col.text(v.get("title"),
-                                                                   f"{where}.title", block_id),
+    return BlockSpec(id=block_id, kind=kind_name, title=data.get("title") or block_id,
                      inputs=inputs if inputs is not None and inputs.value is not None else None,
-                     checks=checks, display=display,
-                     notes=col.text(v.get("notes"), f"{where}.notes"), loc=node.loc,
-                     sheet_id=sheet_id)
+                     checks=checks, display=display, notes=data.get("notes") or "",
+                     loc=node.loc, sheet_id=sheet_id)
 
 
 def _checks(cnode: Node | None, key: str, col: Collector) -> list[CheckSpec]:
-    checks: list[CheckSpec] = []
-    if cnode is None:
-        return checks
+    if cnode is None or cnode.value is None:
+        return []
     if not cnode.is_list:
         col.error(cnode.loc, f"{key}.checks", "not a list",
                   "a list of {result, at_most | at_least, source}", _shown(cnode))
-        return checks
+        return []
+    checks = []
     for j, c in enumerate(cnode.value):
-        cwhere = f"{key}.checks[{j}]"
         before = len(col.errors)
-        if not col.keys(c, _CHECK_KEYS, cwhere, required=("result",)):
+        data = read_checked(c, CHECK, f"{key}.checks[{j}]", col)
+        if data is None or len(col.errors) > before:
             continue
-        relations = [r for r in ("at_most", "at_least") if r in c.value]
-        if len(relations) != 1:
-            col.error(c.loc, cwhere, "a check needs exactly one of at_most | at_least",
-                      "exactly one", ", ".join(relations) or "none")
-            continue
-        result = col.text(c.value.get("result"), f"{cwhere}.result")
-        source = col.text(c.value.get("source"), f"{cwhere}.source")
-        if len(col.errors) > before:
-            continue
-        checks.append(CheckSpec(result=result, relation=relations[0],
-                                limit_node=c.value[relations[0]], source=source, loc=c.loc))
+        relation = "at_most" if data.get("at_most") is not None else "at_least"
+        checks.append(CheckSpec(result=data["result"], relation=relation,
+                                limit_node=c.value[relation], source=data.get("source") or "",
+                                loc=c.loc))
     return checks
 
 
 def _review(files: ProjectFiles, col: Collector):
     tree = _read(files, "review.yaml", col)
-    if tree is None or not col.keys(tree, ("reviewer", "comments"), "review"):
+    if tree is None:
+        return "", []
+    data = read(tree, REVIEW_FILE, "review", col, raw=("comments",))
+    if data is None:
         return "", []
     comments = []
-    cnode = tree.value.get("comments")
-    if cnode is not None and not cnode.is_list and cnode.value is not None:
+    cnode = data.get("comments")
+    if cnode is None or cnode.value is None:
+        return data.get("reviewer") or "", []
+    if not cnode.is_list:
         col.error(cnode.loc, "review.comments", "not a list",
                   "a list of {on, by, date, text, status, response}", _shown(cnode))
-        cnode = None
-    for i, c in enumerate(cnode.value if cnode is not None and cnode.is_list else []):
-        where = f"review.comments[{i}]"
+        return data.get("reviewer") or "", []
+    comment_key = REVIEW_KEYS["comments"].items
+    for i, c in enumerate(cnode.value):
         before = len(col.errors)
-        if not col.keys(c, _REVIEW_KEYS, where, required=("on", "text", "status")):
+        item = read_checked(c, comment_key, f"review.comments[{i}]", col)
+        if item is None or len(col.errors) > before:
             continue
-        cv = c.value
-        status = col.text(cv.get("status"), f"{where}.status")
-        if status and status not in ("open", "answered", "closed"):
-            col.error(cv["status"].loc, f"{where}.status", "unknown status",
-                      "open | answered | closed", repr(status),
-                      did_you_mean(status, ("open", "answered", "closed")))
-        comment = ReviewComment(on=col.text(cv.get("on"), f"{where}.on"),
-                                by=col.text(cv.get("by"), f"{where}.by"),
-                                date=col.date(cv.get("date"), f"{where}.date"),
-                                text=col.text(cv.get("text"), f"{where}.text"), status=status,
-                                response=col.text(cv.get("response"), f"{where}.response"),
-                                loc=c.loc)
-        if len(col.errors) == before:
-            comments.append(comment)
-    return col.text(tree.value.get("reviewer"), "review.reviewer"), comments
+        comments.append(ReviewComment(on=item["on"], by=item.get("by") or "",
+                                      date=item.get("date") or "", text=item["text"],
+                                      status=item["status"], response=item.get("response") or "",
+                                      loc=c.loc))
+    return data.get("reviewer") or "", comments

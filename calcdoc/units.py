@@ -19,7 +19,7 @@ from calcdoc.errors import CalcdocError
 
 __all__ = [
     "ureg", "UnitProblem", "parse_unit", "parse_quantity_text", "convert", "dimension_text",
-    "same_dimension", "split_quantity", "unit_text_of", "si_unit_for", "ABSOLUTE", "DIFFERENCE",
+    "same_dimension", "split_quantity", "unit_text_of", "suggest_unit", "si_unit_for", "ABSOLUTE", "DIFFERENCE",
 ]
 
 # Unit typography is a display rule (calcdoc.render.numbers); messages here use it too.
@@ -63,16 +63,66 @@ def parse_unit(text: str) -> pint.Unit:
         return ureg.dimensionless
     if text not in _LONE_ABSOLUTE:
         text = _compound_degrees_as_differences(text)
-    if len(text) > 60 or not _UNIT_CHARACTERS.match(text):
+    unit = _read_unit(text)
+    if unit is None:
+        suggestion = suggest_unit(text)
         raise UnitProblem(f"unknown unit '{text[:60]}'", "a unit pint knows, such as m, "
-                          "W/(m*K), degC", repr(text[:60]))
+                          "W/(m*K), degC", repr(text[:60]),
+                          f"did you mean '{suggestion}'?" if suggestion else None)
+    return unit
+
+
+def _read_unit(text: str) -> pint.Unit | None:
+    if len(text) > 60 or not _UNIT_CHARACTERS.match(text):
+        return None
     try:
         unit = ureg.parse_units(text)
         ureg.Quantity(1.0, unit).to_base_units()  # a unit that cannot convert is no unit
-    except Exception as exc:  # noqa: BLE001 - pint reading user text raises many kinds
-        raise UnitProblem(f"unknown unit '{text}'", "a unit pint knows, such as m, W/(m*K), degC",
-                          repr(text)) from exc
+    except Exception:  # noqa: BLE001 - pint reading user text raises many kinds
+        return None
     return unit
+
+
+# Units as engineers type them in a hurry: a power without its caret (m2), a product without
+# its star (mK), a denominator without brackets (W/m2K), degrees with a space (deg C).
+_UNIT_WORDS = sorted(["W", "kW", "MW", "J", "kJ", "MJ", "m", "mm", "cm", "km", "K", "kg", "g",
+                      "s", "h", "min", "Pa", "kPa", "N", "degC", "degF", "delta_degC", "Btu",
+                      "ft", "in", "lb"], key=len, reverse=True)
+
+
+def suggest_unit(text: str) -> str | None:
+    """Return the unit a mistyped unit text most likely means ('m2' → 'm^2', 'W/m2K' →
+    'W/(m^2*K)'), or None when no reading of it is a unit."""
+    guess = text.strip().replace("deg C", "degC").replace("deg F", "degF")
+    guess = re.sub(r"([A-Za-z])(\d)", r"\1^\2", guess)  # m2 → m^2
+
+    def product(part: str) -> str:
+        """'m^2K' → 'm^2*K': split a run of unit words written together."""
+        words, rest = [], part
+        while rest:
+            for word in _UNIT_WORDS:
+                match = re.match(re.escape(word) + r"(\^\d+)?", rest)
+                if match:
+                    words.append(match.group(0))
+                    rest = rest[match.end():]
+                    break
+            else:
+                return part
+        return "*".join(words)
+
+    numerator, slash, denominator = guess.partition("/")
+    numerator = product(numerator) if "*" not in numerator and "(" not in numerator else \
+        numerator
+    if slash:
+        denominator = product(denominator) if "(" not in denominator else denominator
+        if "*" in denominator and not denominator.startswith("("):
+            denominator = f"({denominator})"
+        guess = f"{numerator}/{denominator}"
+    else:
+        guess = numerator
+    if guess != text and _read_unit(_compound_degrees_as_differences(guess)) is not None:
+        return guess
+    return None
 
 
 # Names a building engineer uses for common dimensions, with the coherent SI unit of each.
@@ -94,12 +144,15 @@ def _dimension_names() -> dict[str, str]:
 
 
 def dimension_text(unit: str | pint.Unit) -> str:
-    """Return the dimension of a unit in words, e.g. 'thermal conductivity [W/(m·K)]'."""
+    """Return the dimension of a unit in words an engineer reads: 'thermal conductivity
+    [W/(m·K)]', or for a dimension without a name its coherent SI unit, 'unit kg/(s³·K)'."""
     u = parse_unit(unit) if isinstance(unit, str) else unit
     dim = str(ureg.Quantity(1.0, _as_multiplicative(u)).dimensionality)
     if dim == "dimensionless":
         return "dimensionless"
-    return _dimension_names().get(dim, dim)
+    if dim in _dimension_names():
+        return _dimension_names()[dim]
+    return f"unit {pretty_unit(si_unit_for(u))}"
 
 
 def _as_multiplicative(u: pint.Unit) -> pint.Unit:
@@ -121,7 +174,19 @@ def si_unit_for(unit: str | pint.Unit) -> str:
         if str(ureg.Quantity(1.0, candidate).dimensionality) == dim:
             return candidate
     base = ureg.Quantity(1.0, _as_multiplicative(u)).to_base_units().units
-    return f"{base:~C}".replace("**", "^")
+    numerator = [f"{n}^{p:g}" if p != 1 else n for n, p in _base_parts(base) if p > 0]
+    denominator = [f"{n}^{-p:g}" if p != -1 else n for n, p in _base_parts(base) if p < 0]
+    text = "*".join(numerator) or "1"
+    if denominator:
+        joined = "*".join(denominator)
+        text += f"/({joined})" if len(denominator) > 1 else f"/{joined}"
+    return text
+
+
+def _base_parts(unit: pint.Unit) -> list[tuple[str, float]]:
+    symbols = {"meter": "m", "kilogram": "kg", "second": "s", "kelvin": "K", "ampere": "A",
+               "mole": "mol", "candela": "cd"}
+    return [(symbols.get(name, name), float(power)) for name, power in unit._units.items()]
 
 
 def same_dimension(a: str | pint.Unit, b: str | pint.Unit) -> bool:

@@ -36,7 +36,7 @@ def built(tmp_path):
 def test_results_json_follows_the_contract(built):
     _, out = built
     doc = json.loads((out / "results.json").read_text())
-    assert doc["format_version"] == 1
+    assert doc["format_version"] == 2
     assert doc["project"] == {"number": "T-001", "title": "Test project", "revision": "P1"}
     block = doc["sheets"][0]["blocks"][0]
     assert block["id"] == "loss" and block["kind"] == "formula"
@@ -46,6 +46,10 @@ def test_results_json_follows_the_contract(built):
     assert check["relation"] == "at_most" and check["passed"] is False
     assert check["limit_si"] == 400.0 and check["margin_si"] == -100.0
     assert check["utilisation"] == pytest.approx(1.25)
+    # format 2: the step as printed, re-doable from its printed numbers
+    assert block["steps"] == [{"name": "Q", "label": "Fabric loss", "expr": "U * A * dT",
+                               "values": {"U": "0.25 W/(m^2*K)", "A": "100 m^2", "dT": "20 K"},
+                               "result": "0.500 kW", "source": ""}]
 
 
 def test_manifest_hashes_every_input_and_output(built):

@@ -142,3 +142,25 @@ def test_final_treats_a_blank_approver_as_none(tmp_path, capsys, approver):
     err = capsys.readouterr().err
     assert code == 1
     assert "revision C1 has no approver" in err
+
+
+def test_same_person_written_two_ways__same_state_on_site_pdf_and_final(tmp_path, capsys):
+    # 'A. Engineer' prepared and 'a engineer' checked: one person (common practice: initials,
+    # case and stops do not make a second checker). The site, the PDF's view and --final all
+    # take the state from calcdoc.render.status, so they say the same.
+    from calcdoc.evaluate import evaluate_folder
+    from calcdoc.render.html import package_view
+    project = write(tmp_path / "proj", approver="C. Approver", sheets=[
+        {"id": "W3", "prepared": "A. Engineer", "checked": checked("a engineer"),
+         "limit": "600 W"}])
+    package = evaluate_folder(project)
+    site, pdf = package_view(package, "site"), package_view(package, "pdf")
+    assert site["sheets"][0]["signoff_state"] == "checked by its preparer"
+    assert pdf["sheets"][0]["signoff_state"] == "checked by its preparer"
+    assert not site["sheets"][0]["signed_off"] and not pdf["sheets"][0]["signed_off"]
+    out = tmp_path / "out"
+    assert main(["build", str(project), "--out", str(out), "--no-pdf"]) == 0
+    assert "checked by its preparer" in (out / "index.html").read_text("utf-8")
+    code = main(["build", str(project), "--out", str(tmp_path / "final"), "--no-pdf", "--final"])
+    assert code == 1
+    assert "sheet W3 is checked by its preparer (a engineer)" in capsys.readouterr().err

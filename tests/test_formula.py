@@ -111,7 +111,12 @@ def test_units_convert_through_steps(evaluate):
                              "    checks:\n      - {result: Q, at_most: 1.5 kW}"))
     block = package.block("F1.calc")
     assert block.output.results["Q"].value == pytest.approx(1440.0)
-    assert block.output.results["Q"].display == "1.44 kW"
+    from calcdoc.render.printed import print_value
+    assert print_value(block.output.value_of("Q"), 3).text == "1.44 kW"
+    printed = block.printed_steps(3)[0].record()
+    assert printed == {"name": "Q", "label": "", "expr": "U * A * dT",
+                       "values": {"U": "0.25 W/(m^2*K)", "A": "240 m^2", "dT": "24 K"},
+                       "result": "1.44 kW", "source": ""}
     check = block.checks[0]
     assert check.passed and check.margin_si == pytest.approx(60.0)
     assert check.utilisation == pytest.approx(0.96)

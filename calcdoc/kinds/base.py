@@ -313,6 +313,12 @@ class Quantity(Field):
              "properties": {"value": {"anyOf": written}, "source": {"type": "string"}}},
             _REF_SCHEMA, _NAMED_SCHEMA]}
 
+    def describe(self) -> dict:
+        d = super().describe()
+        d.update({"si_unit": self.unit, "temperature": self.temperature or "",
+                  "percent": self.percent})
+        return d
+
     def example(self) -> str:
         if self.temperature == ABSOLUTE:
             return "20 degC"
@@ -916,7 +922,8 @@ class Kind:
         return {"name": self.name, "title": self.title, "summary": self.summary,
                 "inputs": _describe_fields(self.inputs, self.exactly_one),
                 "exactly_one": [list(g) for g in self.exactly_one],
-                "results": [{"name": r.name, "unit": pretty_unit(r.unit), "meaning": r.meaning,
-                             "temperature": r.temperature or ""} for r in self.results],
+                "results": [{"name": r.name, "unit": pretty_unit(r.unit), "si_unit": r.unit,
+                             "meaning": r.meaning, "temperature": r.temperature or "",
+                             "list": r.list} for r in self.results],
                 "caution": self.caution}
 

@@ -26,6 +26,8 @@ from calcdoc.data import Value
 from calcdoc.render.math import mathml, pdf_math, split_formula
 from calcdoc.render.plots import draw
 from calcdoc.render.printed import PrintedStep, fill, print_check, print_value
+from calcdoc.provenance import values_to_confirm
+from calcdoc.references import PROJECT, PUBLISHED, split
 from calcdoc.render.status import signoff_state
 
 __all__ = ["package_view", "render_site", "render_package_html", "environment", "TEMPLATES",
@@ -76,26 +78,43 @@ def sheet_page_name(sheet_id: str) -> str:
 
 
 class Citations:
-    """Numbered sources: the first use of a source text takes the next number."""
+    """Sources as the package prints them (calcdoc.references): published documents numbered
+    in order of first use, one entry per document and edition, cited as [n, clause]; project
+    information printed beside what it supports and listed apart; statements printed beside."""
 
     def __init__(self):
         self.numbers: dict[str, int] = {}
         self.uses: dict[int, list[str]] = {}
+        self.project: dict[str, list[str]] = {}
 
-    def cite(self, source: str, where: str = "") -> int | None:
-        source = (source or "").strip()
-        if not source:
+    def cite(self, source, used_in: str = "") -> dict | None:
+        """Return how to print a source where it is used: {"text", "refs": [{"n", "where"}]}."""
+        parts = split(source) if source else []
+        if not parts:
             return None
-        if source not in self.numbers:
-            self.numbers[source] = len(self.numbers) + 1
-        n = self.numbers[source]
-        if where and where not in self.uses.setdefault(n, []):
-            self.uses[n].append(where)
-        return n
+        text, refs = [], []
+        for part in parts:
+            if part.kind == PUBLISHED:
+                if part.document not in self.numbers:
+                    self.numbers[part.document] = len(self.numbers) + 1
+                n = self.numbers[part.document]
+                if used_in and used_in not in self.uses.setdefault(n, []):
+                    self.uses[n].append(used_in)
+                refs.append({"n": n, "where": part.where})
+            else:
+                text.append(part.text)
+                if part.kind == PROJECT:
+                    uses = self.project.setdefault(part.text, [])
+                    if used_in and used_in not in uses:
+                        uses.append(used_in)
+        return {"text": "; ".join(text), "refs": refs}
 
     def listing(self) -> list[dict]:
         return [{"n": n, "text": text, "uses": self.uses.get(n, [])}
                 for text, n in sorted(self.numbers.items(), key=lambda kv: kv[1])]
+
+    def project_information(self) -> list[dict]:
+        return [{"text": text, "uses": uses} for text, uses in self.project.items()]
 
 
 class _Links:
@@ -169,7 +188,7 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
     out = block.output
     key = block.key
     # Citations are numbered in reading order: method, inputs, assumptions, steps, warnings, checks.
-    method = [n for n in (cites.cite(ref, key) for ref in block.kind.references) if n]
+    method = [c for c in (cites.cite(ref, key) for ref in block.kind.references) if c]
     inputs = [_input_view(r, block, cites, links, sig, system) for r in block.inputs]
     notes = [{"text": fill(n["text"], sig, system), "cite": cites.cite(n.get("source", ""), key)}
              for n in out.notes]
@@ -262,6 +281,8 @@ def _materials_view(package, cites: "Citations", links) -> list[dict]:
                      "properties": properties, "law": entry.get("law", ""),
                      "file": entry.get("file", ""),
                      "cite": [cites.cite(entry.get("source", ""), k) for k in used[name]][0],
+                     "to_confirm": any(c.get("confirmed") is False
+                                       for c in entry.get("sources", {}).values()),
                      "used_in": [{"key": k, "href": links.anchor(k)} for k in used[name]]})
     return rows
 
@@ -358,6 +379,9 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
     references = cites.listing()
     for r in references:
         r["uses"] = [{"key": key, "href": links.anchor(key)} for key in r["uses"]]
+    project_information = cites.project_information()
+    for r in project_information:
+        r["uses"] = [{"key": key, "href": links.anchor(key)} for key in r["uses"]]
     return {
         "calcdoc_version": __version__,
         "project": {"number": project.number, "title": project.title, "client": project.client,
@@ -373,6 +397,8 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         "checks": all_checks,
         "failed": sum(1 for c in all_checks if not c["passed"]),
         "references": references,
+        "project_information": project_information,
+        **_confirmation_view(package, links, sig, system),
         "references_href": links.index("references"),
         "index_prefix": links.index(""),
         "comments": comments,
@@ -385,6 +411,24 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         "caution": CAUTION,
         "target": target,
     }
+
+
+def _confirmation_view(package, links, sig: int, system: str) -> dict:
+    """The values to confirm before issue, and those the project has confirmed."""
+    to_confirm, confirmed = [], []
+    for item in values_to_confirm(package):
+        value = item.value if isinstance(item.value, str) or item.value is None else \
+            print_value(item.value, sig, system).text
+        row = {"key": item.key, "what": item.what, "value": value or "—",
+               "against": item.against,
+               "used_in": [{"key": k, "href": links.anchor(k)} for k in item.used_in]}
+        if item.confirmation is None:
+            to_confirm.append(row)
+        else:
+            c = item.confirmation
+            confirmed.append({**row, "against": c.against, "by": c.by, "date": c.date})
+    return {"values_to_confirm": to_confirm, "confirmed_values": confirmed,
+            "values_to_confirm_href": links.index("values-to-confirm")}
 
 
 def environment() -> jinja2.Environment:

@@ -75,9 +75,17 @@ def _superscript(exponent: str) -> str:
     return exponent.translate(_SUPERSCRIPT)
 
 
+def _reciprocal(text: str) -> str:
+    """A reciprocal of one unit is printed with a negative power: '1/m' → 'm^-1'."""
+    match = re.fullmatch(r"1\s*/\s*([A-Za-z]+)(?:\^(\d+))?", text)
+    if match:
+        return f"{match.group(1)}^-{match.group(2) or 1}"
+    return text
+
+
 def pretty_unit(unit: str) -> str:
     """Return a unit text for people: 'W/(m^2*K)' → 'W/(m²·K)', 'degC' → '°C'."""
-    text = normalise_unit_text(unit)
+    text = _reciprocal(normalise_unit_text(unit))
     if text in _PRETTY_NAMES:
         return _PRETTY_NAMES[text]
     text = re.sub(r"\^\((-?[\d.]+)\)|\^(-?[\d.]+)",
@@ -90,7 +98,7 @@ def pretty_unit(unit: str) -> str:
 
 def latex_unit(unit: str) -> str:
     """Return the unit as upright LaTeX: 'W/(m^2*K)' → '\\mathrm{W/(m^{2}\\,K)}'."""
-    text = normalise_unit_text(unit)
+    text = _reciprocal(normalise_unit_text(unit))
     if text in ("", "1", "dimensionless"):
         return ""
     if text in ("%", "percent"):

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from calcdoc.provenance import values_to_confirm
+
 __all__ = ["SignoffState", "signoff_state", "same_person", "final_refusals"]
 
 
@@ -55,8 +57,9 @@ def final_refusals(package, check_words) -> list[str]:
     """Return every reason the package may not be issued as final (empty: it may).
 
     Final means: the current revision has an approver, every sheet is checked at the current
-    revision by someone other than its preparer, every check passes and no review comment is
-    open (FORMAT.md, Command line). ``check_words(check)`` prints a failed check's value and
+    revision by someone other than its preparer, every check passes, no review comment is
+    open (FORMAT.md, Command line) and every library value used is confirmed against its
+    printed source. ``check_words(check)`` prints a failed check's value and
     limit as the package does."""
     project = package.project
     rev = project.revision
@@ -74,4 +77,9 @@ def final_refusals(package, check_words) -> list[str]:
     for n, c in enumerate(project.comments, start=1):
         if c.status == "open":
             reasons.append(f"review comment C{n} on {c.on} is open ({c.loc}): {c.text}")
+    for item in values_to_confirm(package):
+        if item.confirmation is None:
+            reasons.append(f"value {item.key} ({item.what}) is not confirmed against its "
+                           f"printed source ({item.against}): confirm it in project.yaml "
+                           f"confirmations, or give the project's own value with its source")
     return reasons

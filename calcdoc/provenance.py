@@ -1,0 +1,84 @@
+"""Which values in a package are not yet confirmed against their printed source.
+
+A library value recalled rather than read from its document is marked as data: a material
+property with ``confirmed: false``, or a :class:`~calcdoc.references.Cite` with
+``confirmed=False`` in a kind's source. The package lists every such value it uses under "Values
+to confirm", with the document and table to check it against, and ``build --final`` refuses
+while one is unconfirmed. A project confirms a value by giving its own (in its materials.yaml,
+with its own source) or by recording who checked it against which document (project.yaml
+``confirmations``).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from calcdoc.data import Value
+from calcdoc.references import Cite
+
+__all__ = ["ToConfirm", "values_to_confirm", "MATERIAL_UNITS"]
+
+MATERIAL_UNITS = {"conductivity": "W/(m*K)", "density": "kg/m^3",
+                  "specific_heat": "J/(kg*K)", "emissivity": "1", "resistance": "m^2*K/W",
+                  "vapour_resistance_factor": "1", "equivalent_air_thickness": "m"}
+
+
+@dataclass(frozen=True)
+class ToConfirm:
+    """A value to confirm: its key (what a confirmation names), what it is, the value, the
+    document and place to check it against, the blocks that use it, and the project's
+    confirmation if there is one."""
+
+    key: str
+    what: str
+    value: Value | str | None
+    against: str
+    used_in: tuple
+    confirmation: object = None
+
+
+def _sources_of(block):
+    """Every source a block's report prints: inputs, steps, notes, warnings, the method."""
+    for record in block.inputs:
+        yield record.source
+    for step in block.output.steps:
+        yield step.source
+    for item in block.output.notes + block.output.warnings:
+        yield item.get("source", "")
+    yield from block.kind.references
+
+
+def values_to_confirm(package) -> list[ToConfirm]:
+    """Return every unconfirmed value the package uses, in the order first used, each with the
+    project's confirmation where it has recorded one."""
+    project = package.project
+    confirmed = {c.value: c for c in project.confirmations}
+    found: dict[str, ToConfirm] = {}
+
+    def add(key, what, value, against, block_key):
+        entry = found.get(key)
+        used = (entry.used_in if entry else ()) + ((block_key,) if entry is None or
+                                                   block_key not in entry.used_in else ())
+        found[key] = ToConfirm(key, what, value, against, used, confirmed.get(key))
+
+    for sheet in package.sheets:
+        for block in sheet.blocks:
+            for record in block.inputs:
+                if record.origin != "material":
+                    continue
+                name = record.si
+                entry = project.materials.get(name, {})
+                for prop, cited in entry.get("sources", {}).items():
+                    if cited.get("confirmed") is not False:
+                        continue
+                    unit = MATERIAL_UNITS.get(prop)
+                    value = Value(entry[prop], unit, given=True) if unit and prop in entry \
+                        else None
+                    add(f"materials.{name}.{prop}",
+                        f"{entry.get('title', name)}: {prop.replace('_', ' ')}", value,
+                        cited.get("source", ""), block.key)
+            for source in _sources_of(block):
+                if isinstance(source, Cite) and not source.confirmed:
+                    add(source.key or str(source), source.value or str(source), None,
+                        str(source), block.key)
+    return list(found.values())
