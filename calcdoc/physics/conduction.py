@@ -484,12 +484,12 @@ def _relative_humidity(value: ArrayLike) -> np.ndarray:
                     "0 < phi <= 1 (a fraction, not a percentage)")
 
 
-def _saturation_range(quantity: str, temperature: ArrayLike) -> np.ndarray:
+def _saturation_range(quantity: str, temperature: ArrayLike, what: str = "") -> np.ndarray:
     """The temperature, refused (under the caller's parameter name) outside the range of the
-    saturation pressure formulae."""
+    saturation pressure formulae; ``what`` names the temperature in the message."""
     return _checked(quantity, temperature,
                     lambda t: (t >= _SATURATION_T_MIN) & (t <= _SATURATION_T_MAX),
-                    _SATURATION_RANGE_TEXT)
+                    what + _SATURATION_RANGE_TEXT)
 
 
 def dew_point_temperature(air_temperature: ArrayLike,
@@ -534,9 +534,7 @@ def dew_point_temperature(air_temperature: ArrayLike,
     if np.any(low):
         found = phi[low].flat[0] if np.ndim(phi) else phi
         raise PhysicsRangeError("relative_humidity", float(found),
-                                f"a humidity whose vapour pressure is at least {_P_SAT_MIN:.1f} "
-                                "Pa, the saturation pressure at -40 degC (a dew point within "
-                                + _SATURATION_RANGE_TEXT + ")")
+                                "a humidity whose dew point is within " + _SATURATION_RANGE_TEXT)
     return saturation_temperature(p)
 
 
@@ -578,7 +576,8 @@ def surface_relative_humidity(air_temperature: ArrayLike, relative_humidity: Arr
     1. ISO 13788:2012, clause 4 (surface humidity) and Annex E (from memory).
     """
     T_a = _saturation_range("air_temperature", air_temperature)
-    T_s = _saturation_range("surface_temperature", surface_temperature)
+    T_s = _saturation_range("surface_temperature", surface_temperature,
+                            "a surface temperature within ")
     phi = _relative_humidity(relative_humidity)
     p = phi * np.asarray(saturation_vapour_pressure(T_a))
     return _result(p / np.asarray(saturation_vapour_pressure(T_s)))
