@@ -509,30 +509,31 @@ def _condensation_steps(inp, out, layers, combined, R_T, R_si, R_se, T_i, T_e) -
     pressures, dew point, condensation margin and surface relative humidity."""
     theta_i, theta_e = inp.inside_temperature, inp.outside_temperature
     R_c = out.input("condensation_surface_resistance")
-    out.note("Surface humidity and mould figures use R_si,c = {R} at the inside surface, never "
+    out.note("Surface humidity and mould figures use R_si,sc = {R} at the inside surface, never "
              "U.", CONDENSATION_RSI_SOURCE, R=R_c)
     if combined is None:
-        R_Tc = out.step("R_T_c", "R_T - R_si + R_si_c", {"R_T": R_T, "R_si": R_si, "R_si_c": R_c},
-                        R_T.si - R_si.si + R_c.si, "m^2*K/W",
+        R_Tc = out.step("R_T_sc", "R_T - R_si + R_si_sc",
+                        {"R_T": R_T, "R_si": R_si, "R_si_sc": R_c}, R_T.si - R_si.si + R_c.si,
+                        "m^2*K/W",
                         label="Total resistance with the condensation surface resistance",
                         source=CONDENSATION_RSI_SOURCE)
     else:
         R_Tc = _combined_condensation_steps(out, combined, R_si, R_se, R_c)
     theta_sc = theta_i - (theta_i - theta_e) * R_c.si / R_Tc.si
-    surface = out.step("theta_si_c", "theta_i - (theta_i - theta_e) * R_si_c / R_T_c",
-                       {"theta_i": T_i, "theta_e": T_e, "R_si_c": R_c, "R_T_c": R_Tc}, theta_sc,
+    surface = out.step("theta_si_sc", "theta_i - (theta_i - theta_e) * R_si_sc / R_T_sc",
+                       {"theta_i": T_i, "theta_e": T_e, "R_si_sc": R_c, "R_T_sc": R_Tc}, theta_sc,
                        "K", temperature=ABSOLUTE,
                        label="Inside surface temperature for surface humidity",
-                       source=CONDENSATION_RSI_SOURCE, symbols={"theta_si_c": r"\theta_{si}'"})
+                       source=CONDENSATION_RSI_SOURCE, symbols={"theta_si_sc": r"\theta_{si}'"})
     if theta_i == theta_e:
         out.not_reached("f_Rsi", "undefined: the inside and outside temperatures are equal")
     else:
-        out.step("f_Rsi", "(theta_si_c - theta_e) / (theta_i - theta_e)",
-                 {"theta_si_c": surface, "theta_e": T_e, "theta_i": T_i},
+        out.step("f_Rsi", "(theta_si_sc - theta_e) / (theta_i - theta_e)",
+                 {"theta_si_sc": surface, "theta_e": T_e, "theta_i": T_i},
                  float(temperature_factor(theta_sc, theta_i, theta_e)),
                  label="Temperature factor at the inside surface",
                  source=TEMPERATURE_FACTOR_SOURCE, yields="f_Rsi",
-                 symbols={"theta_si_c": r"\theta_{si}'"})
+                 symbols={"theta_si_sc": r"\theta_{si}'"})
     if combined is not None:
         out.warn("f_Rsi and the surface humidity of a bridged element are area means; the "
                  "surface over a bridge is colder. Find its minimum temperature by a numerical "
@@ -547,20 +548,20 @@ def _condensation_steps(inp, out, layers, combined, R_T, R_si, R_se, T_i, T_e) -
     p_v, dew, dew_value = _dew_point_steps(out, theta_i, T_i, out.input("inside_relative_humidity"),
                                            "i", "inside")
     phi_s = float(surface_relative_humidity(theta_i, phi, theta_sc))
-    p_sat_s = _saturation_step(out, theta_sc, "si_c", "Saturation vapour pressure at the inside "
-                               "surface", symbols={"theta_si_c": r"\theta_{si}'",
-                                                   "p_sat_si_c": r"p_{sat}(\theta_{si}')"})
-    margin = out.step("Delta_theta", "theta_si_c - theta_dp", {"theta_si_c": surface,
+    p_sat_s = _saturation_step(out, theta_sc, "si_sc", "Saturation vapour pressure at the inside "
+                               "surface", symbols={"theta_si_sc": r"\theta_{si}'",
+                                                   "p_sat_si_sc": r"p_{sat}(\theta_{si}')"})
+    margin = out.step("Delta_theta", "theta_si_sc - theta_dp", {"theta_si_sc": surface,
                                                               "theta_dp": dew},
                       theta_sc - dew_value, "K", temperature=DIFFERENCE,
                       label="Condensation margin at the inside surface",
                       source=SATURATION_PRESSURE_SOURCE, yields="condensation_margin",
                       symbols={"Delta_theta": r"\Delta\theta_{c}",
-                               "theta_si_c": r"\theta_{si}'"})
-    phi_shown = out.step("varphi_si", "p_v / p_sat_si_c", {"p_v": p_v, "p_sat_si_c": p_sat_s},
+                               "theta_si_sc": r"\theta_{si}'"})
+    phi_shown = out.step("varphi_si", "p_v / p_sat_si_sc", {"p_v": p_v, "p_sat_si_sc": p_sat_s},
                          phi_s, label="Relative humidity at the inside surface",
                          source=MOULD_SOURCE, yields="surface_relative_humidity",
-                         symbols={"p_sat_si_c": r"p_{sat}(\theta_{si}')"})
+                         symbols={"p_sat_si_sc": r"p_{sat}(\theta_{si}')"})
     out.note("Interstitial condensation (the ISO 13788 monthly method) is not assessed by this "
              "block.", "ISO 13788:2012")
     if margin.si < 0.0:
@@ -575,34 +576,34 @@ def _condensation_steps(inp, out, layers, combined, R_T, R_si, R_se, T_i, T_e) -
 
 
 def _combined_condensation_steps(out, combined, R_si, R_se, R_c) -> Value:
-    """The combined method again with R_si,c in place of R_si: each section total and the lower
-    limit shift by R_si,c − R_si; the limits' mean is R_T,c."""
+    """The combined method again with R_si,sc in place of R_si: each section total and the lower
+    limit shift by R_si,sc − R_si; the limits' mean is R_T,sc."""
     sections, fractions = combined["sections"], combined["fractions"]
     cm = combined_method(combined["rows"], [f.si for f in fractions], R_c.si, R_se.si)
     totals = []
     for m, R_T_m in enumerate(combined["totals"]):
         letter = _ABC[m]
-        totals.append(out.step(f"R_T_c_{letter}", f"R_T_{letter} - R_si + R_si_c",
-                               {f"R_T_{letter}": R_T_m, "R_si": R_si, "R_si_c": R_c},
+        totals.append(out.step(f"R_T_sc_{letter}", f"R_T_{letter} - R_si + R_si_sc",
+                               {f"R_T_{letter}": R_T_m, "R_si": R_si, "R_si_sc": R_c},
                                R_T_m.si - R_si.si + R_c.si, "m^2*K/W",
                                label=phrase("Section {m}, {what}", m=Value(letter),
                                             what=Value(sections[m]["what"])),
                                source=CONDENSATION_RSI_SOURCE, group=GROUP_CONDENSATION,
                                item=letter))
-    parallel = " + ".join(f"f_{_ABC[m]} / R_T_c_{_ABC[m]}" for m in range(len(sections)))
+    parallel = " + ".join(f"f_{_ABC[m]} / R_T_sc_{_ABC[m]}" for m in range(len(sections)))
     operands = {**{f"f_{_ABC[m]}": f for m, f in enumerate(fractions)},
-                **{f"R_T_c_{_ABC[m]}": R for m, R in enumerate(totals)}}
-    symbols = {"R_T_c_upper": "R'_{T,c}", "R_T_c_lower": "R''_{T,c}", "R_T_lower": "R''_{T}"}
-    upper = out.step("R_T_c_upper", f"1 / ({parallel})", operands, cm.R_upper, "m^2*K/W",
+                **{f"R_T_sc_{_ABC[m]}": R for m, R in enumerate(totals)}}
+    symbols = {"R_T_sc_upper": "R'_{T,sc}", "R_T_sc_lower": "R''_{T,sc}", "R_T_lower": "R''_{T}"}
+    upper = out.step("R_T_sc_upper", f"1 / ({parallel})", operands, cm.R_upper, "m^2*K/W",
                      label="Upper limit with the condensation surface resistance",
                      source=CONDENSATION_RSI_SOURCE, symbols=symbols)
-    lower = out.step("R_T_c_lower", "R_T_lower - R_si + R_si_c",
-                     {"R_T_lower": combined["lower"], "R_si": R_si, "R_si_c": R_c},
+    lower = out.step("R_T_sc_lower", "R_T_lower - R_si + R_si_sc",
+                     {"R_T_lower": combined["lower"], "R_si": R_si, "R_si_sc": R_c},
                      combined["lower"].si - R_si.si + R_c.si, "m^2*K/W",
                      label="Lower limit with the condensation surface resistance",
                      source=CONDENSATION_RSI_SOURCE, symbols=symbols)
-    return out.step("R_T_c", "(R_T_c_upper + R_T_c_lower) / 2",
-                    {"R_T_c_upper": upper, "R_T_c_lower": lower}, cm.R_total, "m^2*K/W",
+    return out.step("R_T_sc", "(R_T_sc_upper + R_T_sc_lower) / 2",
+                    {"R_T_sc_upper": upper, "R_T_sc_lower": lower}, cm.R_total, "m^2*K/W",
                     label="Total resistance with the condensation surface resistance (combined "
                           "method)", source=CONDENSATION_RSI_SOURCE, symbols=symbols)
 
@@ -672,7 +673,7 @@ def _wall_figure(out, inp, layers, temperatures, surface) -> FigureData:
         Line((total + 0.4 * film, total + film), (theta_e, theta_e), "outside air", 2),
         Line((-0.4 * film, 0.0), (theta_i, temperatures[0]), "surface film (not to scale)", 3),
         Line((total, total + 0.4 * film), (temperatures[-1], theta_e), "", 3),
-        Line((0.0,), (surface["theta"],), "inside surface with R_si,c (for condensation)", 4,
+        Line((0.0,), (surface["theta"],), "inside surface with R_si,sc (for condensation)", 4,
              True),
     ]
     marks = []
@@ -953,12 +954,13 @@ LAYERED_WALL = Kind(
                    temperature=ABSOLUTE, list=True),
         ResultSpec("R_upper", "m^2*K/W", "upper limit R'_T of the combined method"),
         ResultSpec("R_lower", "m^2*K/W", "lower limit R''_T of the combined method"),
-        ResultSpec("f_Rsi", "1", "temperature factor at the inside surface (R_si,c)"),
+        ResultSpec("f_Rsi", "1", "temperature factor at the inside surface (R_si,sc)"),
         ResultSpec("dew_point", "K", "dew point of the inside air", temperature=ABSOLUTE),
         ResultSpec("condensation_margin", "K",
-                   "inside surface temperature (R_si,c) minus dew point", temperature=DIFFERENCE),
+                   "inside surface temperature (R_si,sc) minus dew point",
+                   temperature=DIFFERENCE),
         ResultSpec("surface_relative_humidity", "1",
-                   "relative humidity at the inside surface (R_si,c)", display="%"),
+                   "relative humidity at the inside surface (R_si,sc)", display="%"),
     ),
     compute=_wall_compute,
     caution=WALL_CAUTION,
