@@ -666,13 +666,15 @@ def _wall_figure(out, inp, layers, temperatures, surface) -> FigureData:
     for k, (entry, x0, x1) in enumerate(zip(layers, edges[:-1], edges[1:])):
         wide = (x1 - x0) >= 0.045 * total
         label = entry["label"] + (f" + {entry['bridge']['name']}" if entry["bridge"] else "")
-        bands.append(Band(x0, x1, label if wide else "", 5 if entry["bridge"] else k % 2))
+        # Plain layers alternate white and grey (no hatching under the words); a bridged layer
+        # is cross-hatched, as it is not one material.
+        bands.append(Band(x0, x1, label if wide else "", 5 if entry["bridge"] else 2 * (k % 2)))
     lines = [
         Line(tuple(edges), tuple(temperatures), "temperature through the element", 0, True),
-        Line((-film, -0.4 * film), (theta_i, theta_i), "inside air", 1),
-        Line((total + 0.4 * film, total + film), (theta_e, theta_e), "outside air", 2),
-        Line((-0.4 * film, 0.0), (theta_i, temperatures[0]), "surface film (not to scale)", 3),
-        Line((total, total + 0.4 * film), (temperatures[-1], theta_e), "", 3),
+        Line((-film, -0.4 * film, 0.0), (theta_i, theta_i, temperatures[0]),
+             "air and surface film on each side (film not to scale)", 3),
+        Line((total, total + 0.4 * film, total + film), (temperatures[-1], theta_e, theta_e),
+             "", 3),
         Line((0.0,), (surface["theta"],), "inside surface with R_si,sc (for condensation)", 4,
              True),
     ]
@@ -703,7 +705,8 @@ def _wall_figure(out, inp, layers, temperatures, surface) -> FigureData:
     return FigureData(
         key=f"{out.block_key}-profile", caption=phrase(caption, **places),
         x=Axis("position from the inside surface", "m", "mm", (-film, total + film)),
-        y=Axis("temperature", "K", "degC", (low - pad, high + 1.5 * pad)),
+        # room below the profile's lowest point for the legend
+        y=Axis("temperature", "K", "degC", (low - 3.0 * pad, high + 1.5 * pad)),
         lines=tuple(lines), bands=tuple(bands), marks=tuple(marks),
         # the profile falls from the warm side: the corner below its start is clear
         legend="lower left" if theta_i >= theta_e else "upper left", size=(160.0, 85.0))
@@ -891,7 +894,8 @@ def _pipe_figure(out, inp, flow, conductivities, dew) -> FigureData:
         xs.extend(r.tolist())
         ys.extend((temperatures[j - 1] - q * np.log(r / r[0]) / (2 * math.pi * k)).tolist())
         wide = radii[j] - radii[j - 1] >= 0.08 * span
-        bands.append(Band(radii[j - 1], radii[j], _layer_name(layer, j) if wide else "", j % 2))
+        bands.append(Band(radii[j - 1], radii[j], _layer_name(layer, j) if wide else "",
+                          2 * (j % 2)))
     marks = [Mark("y", inp.ambient_temperature, "ambient air", 1),
              Mark("y", inp.inside_temperature, "fluid inside", 3)]
     places = {"r0": Value(radii[0], "m", "mm"), "rn": Value(radii[-1], "m", "mm"),
