@@ -180,8 +180,8 @@ def _conductivity(out, record, path: str) -> tuple[Value, str]:
     return out.input(f"{path}.conductivity"), ""
 
 
-def _layer_label(j: int, name: str, what: str = ""):
-    return phrase("Layer {j}, {name}" + what, j=Value(j, given=True), name=Value(name))
+def _layer_label(j: int, name: str):
+    return phrase("Layer {j}, {name}", j=Value(j, given=True), name=Value(name))
 
 
 def _celsius_number(T: float, given: bool = False) -> Value:
@@ -362,15 +362,14 @@ def _combined_steps(out, layers, bridged, R_si, R_se) -> dict:
                                   item=letter))
     if len(bridged) > 1:
         text = ("Several layers are bridged: the bridges are assumed aligned (each narrower "
-                "bridge lies within the wider ones), which defines " + str(len(sections))
-                + " sections.")
+                "bridge lies within the wider ones), which defines {n} sections.")
         if all(e["bridge"]["R"].si <= e["R"].si for e in bridged):
             text += (" With every bridge conducting better than its layer, this gives the lowest "
                      "upper limit of all arrangements of the same fractions (conservative for "
                      "U).")
         else:
             text += " Another arrangement of the bridges gives a different upper limit."
-        out.note(text, COMBINED_METHOD_SOURCE)
+        out.note(text, COMBINED_METHOD_SOURCE, n=Value(len(sections), given=True))
 
     def in_section(entry, section) -> tuple[str, Value]:
         if entry in section["bridges"]:
@@ -468,8 +467,7 @@ def _combined_steps(out, layers, bridged, R_si, R_se) -> dict:
                                symbols={f"R_{j}_s": f"R^{{*}}_{{{j}}}",
                                         **_lower_symbols(layers)}))
     return {"R_T": R_T, "scaled": scaled, "sections": sections, "fractions": fractions,
-            "totals": totals, "upper": upper, "lower": lower, "rows": rows,
-            "in_section": in_section}
+            "totals": totals, "lower": lower, "rows": rows}
 
 
 def _lower_symbols(layers) -> dict:
