@@ -9,15 +9,24 @@ are asserted word for word, each in the located format FILE:LINE:COL: error: WHE
 
 from __future__ import annotations
 
+import ast
+import json
 import re
+import shutil
+from pathlib import Path
 
 import ht
 import pytest
+import yaml
 from scipy import constants
 
+from calcdoc.cli import main
 from calcdoc.physics.conduction import combined_method
+from calcdoc.render.plots import draw
+from calcdoc.render.printed import fill, print_step
 
 C = 273.15  # K at 0 degC (definition of the Celsius scale)
+ROOT = Path(__file__).resolve().parent.parent
 
 
 def sheet(block: str) -> dict[str, str]:
@@ -49,6 +58,21 @@ def results(package, key):
     return {name: r.value for name, r in package.block(key).output.results.items()}
 
 
+def steps(package, key):
+    """The block's steps by name (the last of a name wins)."""
+    return {s.name: s for s in package.block(key).output.steps}
+
+
+def printed(package, key, sig: int = 3):
+    """The block's steps as printed, by name."""
+    return {s.name: print_step(s, sig) for s in package.block(key).output.steps}
+
+
+def texts(entries, sig: int = 3):
+    """Notes or warnings as the report prints them."""
+    return [fill(e["text"], sig) for e in entries]
+
+
 # --- layered_wall: homogeneous layers ---------------------------------------------------------
 
 def test_layered_wall_u_value__hand_calculation_with_iso6946_table7_surfaces(evaluate):
@@ -74,7 +98,7 @@ def test_layered_wall_u_value__hand_calculation_with_iso6946_table7_surfaces(eva
     assert "R_upper" not in r and "R_lower" not in r  # homogeneous: no combined method
 
 
-def test_layered_wall__table7_default_recorded_as_input_and_cited_in_a_note(evaluate):
+def test_layered_wall__table7_default_recorded_as_input_and_stated_as_a_step(evaluate):
     package = evaluate(wall_sheet(MASONRY))
     block = package.block("S.wall")
     inputs = {record.path: record for record in block.inputs}
@@ -82,13 +106,18 @@ def test_layered_wall__table7_default_recorded_as_input_and_cited_in_a_note(eval
     assert inputs["inside_surface_resistance"].origin == "default"
     assert "Table 7" in inputs["inside_surface_resistance"].source
     assert inputs["outside_surface_resistance"].si == pytest.approx(0.04)  # ISO 6946 Table 7
-    notes = [n for n in block.output.notes if "Table 7" in n["source"]]
-    assert [n["text"] for n in notes] == [
-        "R_si = 0.13 m²·K/W: the conventional value for horizontal heat flow "
-        "(inside_surface_resistance not given).",
-        "R_se = 0.04 m²·K/W: the conventional value for horizontal heat flow "
-        "(outside_surface_resistance not given).",
-    ]
+    shown = printed(package, "S.wall")
+    assert [(shown[n].statement, shown[n].result.text) for n in ("R_si", "R_se")] == [
+        ("the conventional value for horizontal heat flow (inside_surface_resistance not "
+         "given)", "0.130 m²·K/W"),
+        ("the conventional value for horizontal heat flow (outside_surface_resistance not "
+         "given)", "0.0400 m²·K/W")]
+    assert all("Table 7" in shown[n].source for n in ("R_si", "R_se"))
+    # The table values enter the sum in full, as the table prints them.
+    total = shown["R_T"]
+    assert total.expr == "R_si + R_1 + R_2 + R_3 + R_4 + R_se"
+    assert (total.values["R_si"].text, total.values["R_se"].text) == ("0.13 m²·K/W",
+                                                                     "0.04 m²·K/W")
 
 
 @pytest.mark.parametrize("heat_flow, R_si", [
@@ -103,16 +132,18 @@ def test_layered_wall__heat_flow_direction_sets_iso6946_table7_inside_resistance
     assert r["R_total"] == pytest.approx(3.6928 - 0.13 + R_si, abs=0.00005)
 
 
-def test_layered_wall__given_surface_resistance_overrides_table7_with_a_note(evaluate):
+def test_layered_wall__given_surface_resistance_overrides_table7_stating_the_table_value(
+        evaluate):
     package = evaluate(wall_sheet(MASONRY, extra="      outside_surface_resistance: "
                                                  "0.13 m^2*K/W\n"))
     block = package.block("S.wall")
     # Hand calculation: 3.6928 - 0.04 + 0.13 = 3.7828 m2K/W.
     assert block.output.results["R_total"].value == pytest.approx(3.7828, abs=0.00005)
-    assert {"text": "R_se = 0.13 m²·K/W as given, in place of the conventional 0.04 m²·K/W "
-                    "for horizontal heat flow.",
-            "source": "ISO 6946:2017, 6.8, Table 7 (conventional surface resistances)"} \
-        in block.output.notes
+    R_se = printed(package, "S.wall")["R_se"]
+    assert R_se.statement == ("as given, in place of the conventional 0.04 m²·K/W for "
+                              "horizontal heat flow")  # ISO 6946:2017 Table 7: R_se 0.04
+    assert R_se.source == "ISO 6946:2017, 6.8, Table 7 (conventional surface resistances)"
+    assert printed(package, "S.wall")["R_T"].values["R_se"].text == "0.13 m²·K/W"  # as written
 
 
 def test_layered_wall__resistance_layer_enters_the_sum_directly(evaluate):
@@ -169,10 +200,22 @@ def test_bridged_wall__combined_method_limits_match_hand_calculation(evaluate):
     assert r["R_lower"] == pytest.approx(3.0168, abs=0.00005)  # hand calculation above
     assert r["R_total"] == pytest.approx(3.0689, abs=0.00005)  # hand calculation above
     assert r["U"] == pytest.approx(0.3259, abs=0.00005)        # hand calculation above
-    steps = {s.symbol: s for s in package.block("S.wall").output.steps}
-    assert steps["R_{Ta}"].value_si == pytest.approx(3.99835, abs=0.000005)  # hand calc
-    assert steps["R_{Tb}"].value_si == pytest.approx(1.39106, abs=0.000005)  # hand calc
-    assert steps["R''_{2}"].value_si == pytest.approx(2.70270, abs=0.000005)  # hand calc
+    found = steps(package, "S.wall")
+    assert found["R_T_a"].result.si == pytest.approx(3.99835, abs=0.000005)  # hand calc
+    assert found["R_T_b"].result.si == pytest.approx(1.39106, abs=0.000005)  # hand calc
+    assert found["R_2_lower"].result.si == pytest.approx(2.70270, abs=0.000005)  # hand calc
+    # The sums are written out, each section with the layer it crosses, ISO 6946:2017 6.7.2.
+    assert found["R_T_a"].expr == "R_si + R_1 + R_2 + R_3 + R_se"
+    assert found["R_T_b"].expr == "R_si + R_1 + R_2_b + R_3 + R_se"
+    assert found["R_T_upper"].expr == "1 / (f_a / R_T_a + f_b / R_T_b)"
+    assert found["R_2_lower"].expr == "1 / (f_a / R_2 + f_b / R_2_b)"
+    assert found["R_T_lower"].expr == "R_si + R_1 + R_2_lower + R_3 + R_se"
+    assert found["R_T"].expr == "(R_T_upper + R_T_lower) / 2"
+    assert (found["f_a"].expr, found["f_b"].expr) == ("1 - f_2", "f_2")
+    assert found["f_a"].result.si == pytest.approx(0.85, abs=1e-12)  # 100 % - 15 %
+    assert found["R_2"].group == found["R_2_b"].group == "Thermal resistance of each layer"
+    assert (found["R_2"].item, found["R_2_b"].item) == ("studs and mineral wool",
+                                                        "studs and mineral wool: timber studs")
 
 
 TWO_BRIDGED = """\
@@ -201,12 +244,19 @@ def test_two_bridged_layers__aligned_sections_hand_calculation(evaluate):
     assert r["R_upper"] == pytest.approx(3.02927, abs=0.000005)  # hand calculation above
     assert r["R_lower"] == pytest.approx(2.83291, abs=0.000005)  # hand calculation above
     assert r["R_total"] == pytest.approx(2.93109, abs=0.000005)  # hand calculation above
-    aligned = [n["text"] for n in block.output.notes if "assumed aligned" in n["text"]]
+    aligned = [t for t in texts(block.output.notes) if "assumed aligned" in t]
     assert aligned == [
         "Several layers are bridged: the bridges are assumed aligned (each narrower bridge lies "
-        "within the wider ones), which defines 3 sections of fractions 80.0 %, 10.0 %, 10.0 %. "
-        "With every bridge conducting better than its layer, this gives the lowest upper limit "
-        "of all arrangements of the same fractions (conservative for U)."]
+        "within the wider ones), which defines 3 sections. With every bridge conducting better "
+        "than its layer, this gives the lowest upper limit of all arrangements of the same "
+        "fractions (conservative for U)."]
+    # The sections' fractions, each from the bridge fractions that bound it (hand calculation
+    # above: 80 %, 10 %, 10 %).
+    found = steps(package, "S.wall")
+    assert [(found[n].expr, round(found[n].result.si, 12)) for n in ("f_a", "f_b", "f_c")] == [
+        ("1 - f_2", 0.8), ("f_2 - f_1", 0.1), ("f_1", 0.1)]
+    assert found["R_T_b"].expr == "R_si + R_1 + R_2_b + R_se"   # through B only
+    assert found["R_T_c"].expr == "R_si + R_1_b + R_2_b + R_se"  # through both
 
 
 def test_two_bridged_layers__aligned_upper_limit_below_crossed_arrangement():
@@ -222,7 +272,7 @@ def test_two_bridged_layers__aligned_upper_limit_below_crossed_arrangement():
 
 def test_bridged_wall__surface_figures_are_area_means_with_a_warning(evaluate):
     package = evaluate(wall_sheet(TIMBER_FRAME, extra="      inside_relative_humidity: 50 %\n"))
-    warnings = [w["message"] for w in package.block("S.wall").output.warnings]
+    warnings = texts(package.block("S.wall").output.warnings)
     assert ("f_Rsi and the surface humidity of a bridged element are area means; the surface "
             "over a bridge is colder. Find its minimum temperature by a numerical calculation "
             "(ISO 10211) before relying on the mould or condensation result.") in warnings
@@ -263,7 +313,7 @@ def test_surface_humidity__cold_wall_warns_of_condensation_and_mould(evaluate):
     r = results(package, "S.wall")
     assert r["condensation_margin"] == pytest.approx(3.49 - 9.3, abs=0.06)  # hand calculation
     assert r["surface_relative_humidity"] > 1.0  # vapour pressure above saturation at 3.49 degC
-    messages = [w["message"] for w in block.output.warnings]
+    messages = texts(block.output.warnings)
     assert any(m.startswith("The inside surface (3.49 °C) is below the dew point of the inside "
                             "air (9.27 °C): surface condensation is expected.")
                for m in messages)
@@ -290,20 +340,28 @@ def test_humidity_is_not_required_and_its_results_are_absent_without_it(evaluate
 
 # --- layered_wall: the figure ------------------------------------------------------------------
 
-def test_wall_figure__names_layers_marks_dew_point_and_is_deterministic(evaluate):
+def test_wall_figure__layers_to_scale_named_with_dew_point_and_drawn_deterministically(evaluate):
     package = evaluate(wall_sheet(MASONRY, extra="      inside_relative_humidity: 50 %\n"))
     block = package.block("S.wall")
-    first = block.kind.figures(block)
-    second = block.kind.figures(block)
-    assert len(first) == 1 and first[0].svg == second[0].svg  # same bytes for the same inputs
-    svg = first[0].svg
-    for text in ("blockwork", "mineral wool", "brick", "dew point of the inside air 9.27 °C",
-                 "position from the inside surface [mm]"):
-        assert text in svg
-    assert first[0].caption.endswith("Layers: 1 plaster 13 mm; 2 blockwork 100 mm; "
-                                     "3 mineral wool 100 mm; 4 brick 102.5 mm.")
-    data = block.output.figure_data["profile"]
-    assert data["thicknesses_mm"] == pytest.approx([13.0, 100.0, 100.0, 102.5])
+    [figure] = block.output.figures
+    # Layers to scale: the bands' widths are the thicknesses as written (13, 100, 100, 102.5 mm).
+    assert [b.x1 - b.x0 for b in figure.bands] == pytest.approx([0.013, 0.1, 0.1, 0.1025])
+    assert [b.label for b in figure.bands][1:] == ["blockwork", "mineral wool", "brick"]
+    [profile] = [line for line in figure.lines if line.label.startswith("temperature")]
+    assert profile.y == pytest.approx(tuple(results(package, "S.wall")["interface_temperatures"]))
+    [dew] = figure.marks
+    assert dew.label == "dew point of the inside air"
+    assert dew.at - C == pytest.approx(9.27, abs=0.005)  # hand calculation, surface humidity test
+    assert (figure.x.display, figure.y.display) == ("mm", "degC")
+    caption = fill(figure.caption, 3)
+    assert caption.endswith("Layers from the inside, to scale: plaster 13 mm; blockwork 100 mm; "
+                            "mineral wool 100 mm; brick 102.5 mm. Dew point of the inside air "
+                            "9.27 °C.")
+    first, second = draw(figure), draw(figure)
+    assert first.svg == second.svg  # same bytes for the same inputs
+    for text in ("blockwork", "mineral wool", "brick", "dew point of the inside air",
+                 "position from the inside surface (mm)"):
+        assert text in first.svg
 
 
 # --- cylindrical_layers -----------------------------------------------------------------------
@@ -391,13 +449,13 @@ def test_pipe_in_still_air__outside_coefficient_closes_the_balance_with_ht(evalu
     assert r["q_per_length"] < 0  # a chilled pipe gains heat (positive is outward)
     # Cold pipe in still air: a combined coefficient of a few W/(m2K), radiation the larger
     # part at emissivity 0.9 (common practice: about 5 W/(m2K) radiation near 20 degC).
-    steps = {s.symbol: s.value_si for s in package.block("S.pipe").output.steps}
-    assert 4.5 < steps["h_{r}"] < 5.5
-    assert 1.0 < steps["h_{c}"] < 4.0
+    values = {name: step.result.si for name, step in steps(package, "S.pipe").items()}
+    assert 4.5 < values["h_r"] < 5.5
+    assert 1.0 < values["h_c"] < 4.0
     # Stefan–Boltzmann law, sigma from scipy.constants:
     # h_r (T_s - T_a) = eps sigma (T_s^4 - T_a^4).
     T_s = r["theta_surface"]
-    assert steps["h_{r}"] * (T_s - 293.15) == pytest.approx(
+    assert values["h_r"] * (T_s - 293.15) == pytest.approx(
         0.9 * constants.Stefan_Boltzmann * (T_s ** 4 - 293.15 ** 4), rel=1e-9)
 
 
@@ -422,9 +480,10 @@ def test_pipe__churchill_chu_outside_ra_1e12_refused_at_the_emissivity(errors_of
 """
     [message] = errors_of(pipe_sheet(inputs))
     assert re.fullmatch(
-        r"proj/sheets/s\.yaml:12:27: error: S\.pipe: surface_emissivity is outside the range of "
-        r"the method \(expected 0 <= Ra_D <= 1e12 for the Churchill-Chu correlation \(Churchill "
-        r"and Chu 1975\); give outside_coefficient instead, got Ra_D = [\d.]+×10¹²\)", message)
+        r"proj/sheets/s\.yaml:12:27: error: S\.pipe\.inputs\.surface_emissivity: outside the "
+        r"range of the method \(expected 0 <= Ra_D <= 1e12 for the Churchill-Chu correlation "
+        r"\(Churchill and Chu 1975\); give the outside coefficient instead, got [\d.]+e\+12\)",
+        message)
 
 
 # --- bad inputs, word for word -----------------------------------------------------------------
@@ -501,11 +560,12 @@ def test_bad_input__steel_bridge_beyond_the_combined_method(errors_of):
     # = 0.2667; ratio 8.52.
     layers = ("        - {name: wool, thickness: 100 mm, conductivity: 0.035 W/(m*K), "
               "bridge: {conductivity: 50 W/(m*K), fraction: 2 %}}")
+    # The refusal names the bridged layer; a bridge is a mapping, not an input recorded by
+    # itself, so the evaluator places it at the block (see the report on the lead's locator).
     assert errors_of(wall_sheet(layers)) == [
-        "proj/sheets/s.yaml:8:95: error: S.wall: layers[0].bridge.conductivity is outside the "
-        "range of the method (expected R'_T/R''_T <= 1.5 for the combined method (ISO 6946:2017 "
-        "6.7.2); a bridge this conductive needs a numerical calculation to ISO 10211, got "
-        "R'_T/R''_T = 8.52)"]
+        "proj/sheets/s.yaml:4:5: error: S.wall.inputs.layers[0].bridge: outside the range of "
+        "the method (expected R'_T/R''_T <= 1.5 for the combined method (ISO 6946:2017 6.7.2); "
+        "a bridge this conductive needs a numerical calculation to ISO 10211, got 8.522)"]
 
 
 def test_bad_input__pipe_with_both_outside_coefficient_and_emissivity(errors_of):
@@ -533,18 +593,176 @@ def test_bad_input__every_error_of_a_block_reported_at_once(errors_of):
                for m in messages)
 
 
-def test_pipe_radial_profile_figure_ends_at_the_surface_temperature():
+LTHW = """\
+      inner_diameter: 54.5 mm
+      layers:
+        - {name: Steel pipe wall, thickness: 2.9 mm, conductivity: 50 W/(m*K)}
+        - {name: Elastomeric foam, thickness: 32 mm, conductivity: 0.036 W/(m*K)}
+      length: 20 m
+      inside_temperature: 70 degC
+      ambient_temperature: 15 degC
+      surface_emissivity: 0.9
+"""
+
+
+def test_pipe_radial_profile_figure_ends_at_the_surface_temperature(evaluate):
     # The profile follows Fourier's law in a cylinder, T(r) = T_0 − q' ln(r/r_0)/(2πk), so its
     # end must equal the computed outer-surface temperature; the figure is deterministic.
-    from pathlib import Path
+    package = evaluate(pipe_sheet(LTHW))
+    [figure] = package.block("S.pipe").output.figures
+    [line] = figure.lines
+    r = results(package, "S.pipe")
+    assert line.y[-1] == pytest.approx(r["theta_surface"], abs=1e-6)
+    assert line.x[-1] == pytest.approx(r["outer_diameter"] / 2, rel=1e-12)
+    assert line.y[0] == pytest.approx(343.15, abs=1e-9)  # no inside film: the bore at 70 °C
+    assert [m.label for m in figure.marks] == ["ambient air", "fluid inside"]
+    first, second = draw(figure), draw(figure)
+    assert first.svg == second.svg and "Elastomeric foam" in first.svg
 
-    from calcdoc.evaluate import evaluate_project
-    from calcdoc.kinds.conduction import pipe_figures
-    from calcdoc.project import load_project
-    demo = Path(__file__).resolve().parent.parent / "projects" / "cold-store"
-    block = evaluate_project(load_project(demo)).block("PW1.lthw")
-    curves = block.output.figure_data["radial"]["curves"]
-    surface = block.output.results["theta_surface"].value - 273.15
-    assert curves[-1]["t_degC"][-1] == pytest.approx(surface, abs=1e-6)
-    first, second = pipe_figures(block), pipe_figures(block)
-    assert first[0].svg == second[0].svg and "Elastomeric foam" in first[0].svg
+
+# --- the working a checker re-does --------------------------------------------------------------
+
+def test_saturation_pressure_step__iso13788_annex_e_exp_of_the_celsius_number(evaluate):
+    # ISO 13788:2012 Annex E (from memory): p_sat = 610.5 exp(17.269 θ/(237.3 + θ)) over water,
+    # θ in °C; 2337 Pa at 20 °C (the formula's value in building-physics tables, from memory).
+    package = evaluate(wall_sheet(MASONRY, extra="      inside_relative_humidity: 50 %\n"))
+    shown = printed(package, "S.wall")
+    p_sat = shown["p_sat_i"]
+    assert p_sat.expr == "p_0 * exp(a * theta_i / (b + theta_i))"
+    assert {k: v.text for k, v in p_sat.values.items()} == {
+        "p_0": "610.5 Pa", "a": "17.269", "b": "237.3", "theta_i": "20"}  # ISO 13788 Annex E
+    assert p_sat.result.text == "2337 Pa"
+    # The dew point by the inverse of the same formula, ln written log.
+    dew = shown["theta_dp"]
+    assert dew.expr == "theta_0 + b * log(p_v / p_0) / (a - log(p_v / p_0))"
+    assert (dew.values["theta_0"].text, dew.values["b"].text) == ("0 °C", "237.3 K")
+    assert dew.result.text == "9.27 °C"  # hand calculation in the surface humidity test
+    assert shown["Delta_theta"].expr == "theta_si_sc - theta_dp"
+    assert shown["varphi_si"].expr == "p_v / p_sat_si_sc"
+
+
+def test_frost_point_step__uses_the_formula_over_ice(evaluate):
+    # ISO 13788:2012 Annex E (from memory): below 0 °C, a = 21.875 and b = 265.5 (over ice).
+    package = evaluate(wall_sheet(SOLID_BLOCK, inside="-10 degC", outside="-20 degC",
+                                  extra="      inside_relative_humidity: 80 %\n"))
+    shown = printed(package, "S.wall")
+    assert (shown["p_sat_i"].values["a"].text, shown["p_sat_i"].values["b"].text) == (
+        "21.875", "265.5")
+    assert (shown["theta_dp"].values["a"].text, shown["theta_dp"].values["b"].text) == (
+        "21.875", "265.5 K")
+    assert shown["p_sat_i"].result.text == "259 Pa"  # 259.3 Pa, hand calculation above
+
+
+def test_interface_temperatures__one_step_per_interface_grouped(evaluate):
+    package = evaluate(wall_sheet(MASONRY))
+    found = steps(package, "S.wall")
+    chain = [found[n] for n in ("theta_si", "theta_1", "theta_2", "theta_3", "theta_4")]
+    assert [s.expr for s in chain] == ["theta_i - q * R_si", "theta_si - q * R_1",
+                                       "theta_1 - q * R_2", "theta_2 - q * R_3",
+                                       "theta_3 - q * R_4"]
+    assert {s.group for s in chain} == {"Temperature at each interface"}
+    assert [s.item for s in chain] == ["inside surface", "plaster | blockwork",
+                                       "blockwork | mineral wool", "mineral wool | brick",
+                                       "outside surface"]
+    # The chain and the outside air give the same outside surface (hand calculation: −4.73 °C).
+    assert found["theta_se"].expr == "theta_e + q * R_se"
+    assert found["theta_4"].result.si - C == pytest.approx(-4.73, abs=0.005)
+    assert found["theta_se"].result.si == pytest.approx(found["theta_4"].result.si, abs=1e-9)
+
+
+def test_pipe_still_air_steps__iteration_stated_then_churchill_chu_written_out(evaluate):
+    package = evaluate(pipe_sheet(STILL_AIR))
+    found = steps(package, "S.pipe")
+    assert found["T_s"].expr is None and "iteration" in fill(found["T_s"].statement, 3)
+    assert found["T_f"].expr == "(T_s + T_a) / 2"
+    # Churchill and Chu (1975), the full-range equation for a horizontal cylinder.
+    assert found["Nu"].expr == ("(0.6 + 0.387 * Ra ** (1 / 6) / (1 + (0.559 / Pr) ** (9 / 16)) "
+                                "** (8 / 27)) ** 2")
+    assert found["Ra"].expr == "g * (1 / T_f) * abs(T_s - T_a) * D_2 ** 3 / (nu * alpha)"
+    assert found["Ra"].operands["g"].si == pytest.approx(9.80665, abs=1e-12)  # standard gravity
+    assert found["h_c"].expr == "Nu * k_air / D_2"
+    assert found["h_r"].expr == "varepsilon * sigma * (T_s ** 2 + T_a ** 2) * (T_s + T_a)"
+    assert found["h_o"].expr == "h_c + h_r"
+    assert found["R_2"].expr == "log(D_2 / D_1) / (2 * pi * k_2)"
+    assert found["R_2"].group == "Resistance of each layer per metre"
+    assert found["R"].expr == "R_1 + R_2 + R_o"
+    # The air table's rows are interpolated in the open: Bergman et al. Table A.4 (from memory)
+    # has k = 0.0263 W/(m·K) at 300 K and 0.0223 W/(m·K) at 250 K.
+    k = found["k_air"]
+    assert k.expr == "k_air_lo + (k_air_hi - k_air_lo) * (T_f - T_lo) / (T_hi - T_lo)"
+    assert (k.operands["k_air_lo"].si, k.operands["k_air_hi"].si) == (0.0223, 0.0263)
+
+
+def _only_my_sheets(tmp_path: Path) -> Path:
+    """The demo project with only the conduction sheets and the sheet that refers to them."""
+    demo = tmp_path / "demo"
+    shutil.copytree(ROOT / "projects" / "cold-store", demo)
+    project = yaml.safe_load((demo / "project.yaml").read_text())
+    keep = ["sheets/ew1.yaml", "sheets/fw1.yaml", "sheets/pipework.yaml", "sheets/heat-gains.yaml"]
+    assert set(keep) <= set(project["package"]["sheets"])
+    project["package"]["sheets"] = keep
+    (demo / "project.yaml").write_text(yaml.safe_dump(project, sort_keys=False))
+    for sheet in (demo / "sheets").iterdir():
+        if f"sheets/{sheet.name}" not in keep:
+            sheet.unlink()
+    return demo
+
+
+def test_demo_sheets__every_printed_step_redoes_from_its_printed_numbers(tmp_path):
+    # The checker's re-do of tests/test_redo.py (pint, kelvin arithmetic, nothing of calcdoc's
+    # own expression or unit code) on the conduction sheets alone.
+    from test_redo import redo
+    out = tmp_path / "out"
+    assert main(["build", str(_only_my_sheets(tmp_path)), "--out", str(out), "--no-pdf"]) == 0
+    package = json.loads((out / "results.json").read_text())
+    blocks = [(f"{s['id']}.{b['id']}", b) for s in package["sheets"] for b in s["blocks"]]
+    assert [key for key, _ in blocks] == ["EW1.wall", "FW1.wall", "PW1.chw", "PW1.lthw",
+                                          "HG1.gains"]
+    wrong, count = [], 0
+    for key, block in blocks:
+        assert block["steps"], f"{key} prints no step"
+        for step in (s for s in block["steps"] if "expr" in s):
+            count += 1
+            names = {n.id for n in ast.walk(ast.parse(step["expr"], mode="eval"))
+                     if isinstance(n, ast.Name)} - {"pi", "sigma", "exp", "log", "abs"}
+            assert names <= set(step["values"]), (key, step["expr"])
+            again, shown, half = redo(step)
+            if not abs(again - shown) <= half * (1 + 1e-9) + 1e-300:
+                wrong.append(f"{key} {step['name']} = {step['expr']} with {step['values']}: "
+                             f"{again!r}, printed {step['result']}")
+    assert count >= 100
+    assert wrong == []
+
+
+# --- physics refusals located at the input, through Kind.input_names ---------------------------
+
+def test_bad_input__air_too_dry_for_the_dew_point_range_located_at_the_humidity(errors_of):
+    # ISO 13788 Annex E formulae held to -40..+80 degC: -30 degC air at 5 % has its dew point
+    # below -40 degC (hand calculation in tests/test_physics_conduction.py).
+    assert errors_of(wall_sheet(SOLID_BLOCK, inside="-30 degC", outside="-40 degC",
+                                extra="      inside_relative_humidity: 5 %\n")) == [
+        "proj/sheets/s.yaml:11:33: error: S.wall.inputs.inside_relative_humidity: outside the "
+        "range of the method (expected a humidity whose dew point is within -40 degC to +80 degC "
+        "(233.15 K to 353.15 K), where the ISO 13788:2012 Annex E formulae agree with IAPWS "
+        "within 2 %, got 0.05)"]
+
+
+def test_bad_input__surface_below_the_saturation_range_located_at_the_outside_temperature(
+        errors_of):
+    # The inside surface of a single leaf at -120 degC outside is below -40 degC: the outside
+    # temperature is what puts it there.
+    [message] = errors_of(wall_sheet(SOLID_BLOCK, outside="-120 degC",
+                                     extra="      inside_relative_humidity: 50 %\n"))
+    assert message.startswith(
+        "proj/sheets/s.yaml:10:28: error: S.wall.inputs.outside_temperature: outside the range "
+        "of the method (expected a surface temperature within -40 degC to +80 degC")
+
+
+def test_bad_input__ambient_outside_the_air_table_located_at_the_ambient_temperature(errors_of):
+    # Bergman et al. Table A.4 rows held: 200 K to 800 K.
+    inputs = HT_EXAMPLE.replace("ambient_temperature: 301.15 K", "ambient_temperature: 150 K") \
+        .replace("outside_coefficient: 22.697193 W/(m^2*K)", "surface_emissivity: 0.9")
+    [message] = errors_of(pipe_sheet(inputs))
+    assert message.startswith("proj/sheets/s.yaml:12:28: error: S.pipe.inputs."
+                              "ambient_temperature: outside the range of the method (expected "
+                              "200 K to 800 K")

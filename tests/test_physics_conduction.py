@@ -168,8 +168,11 @@ def test_combined_method__steel_bridged_insulation_refused():
     # ISO 6946:2017 6.7.2.1 (from memory): not applicable when R'_T/R''_T > 1.5; a steel stud
     # (lambda 50) at 2 % through 100 mm of insulation (lambda 0.035) is far beyond that.
     with pytest.raises(PhysicsRangeError) as caught:
-        combined_method([[0.1 / 0.035, 0.1 / 50.0]], [0.98, 0.02], 0.13, 0.04)
-    assert caught.value.quantity == "R_upper/R_lower"
+        combined_method([0.05, [0.1 / 0.035, 0.1 / 50.0]], [0.98, 0.02], 0.13, 0.04)
+    # The error names the function's own parameter and the bridged layer (index 1), which the
+    # kind maps to that layer's bridge in the sheet.
+    assert (caught.value.quantity, caught.value.index) == ("layer_resistances", 1)
+    assert caught.value.value > 1.5
 
 
 def test_combined_method__fractions_must_sum_to_one():
@@ -332,15 +335,72 @@ def test_churchill_chu__above_ra_1e12_refused():
     # Churchill and Chu (1975) / Bergman et al.: valid for Ra_D <= 1e12.
     with pytest.raises(PhysicsRangeError) as caught:
         nusselt_horizontal_cylinder_churchill_chu(1.01e12, 0.7)
-    assert caught.value.quantity == "Ra_D"
+    assert caught.value.quantity == "rayleigh"
     with pytest.raises(PhysicsRangeError):
         nusselt_horizontal_cylinder_churchill_chu(-1.0, 0.7)
 
 
 def test_free_convection__large_duct_above_ra_1e12_refused():
     # D = 10 m, 400 K in 300 K air: Ra_D ~ 4e12 > 1e12.
-    with pytest.raises(PhysicsRangeError):
+    with pytest.raises(PhysicsRangeError) as caught:
         free_convection_horizontal_cylinder(10.0, 400.0, 300.0)
+    assert caught.value.quantity == "diameter"  # its own parameter (Ra_D grows with D^3)
+
+
+def test_pipe_in_still_air__above_ra_1e12_refused_at_the_emissivity():
+    # Churchill and Chu (1975): Ra_D <= 1e12; a 10 m duct at 150 degC in 20 degC air exceeds it.
+    # The function names its own parameter that asked for the still-air coefficient.
+    with pytest.raises(PhysicsRangeError) as caught:
+        pipe_in_still_air(10.0, [0.05], [0.04], 423.15, 293.15, 0.9)
+    assert caught.value.quantity == "emissivity"
+    assert "give the outside coefficient instead" in caught.value.expected
+
+
+@pytest.mark.parametrize("T_i, T_a, quantity", [
+    (293.15, 150.0, "ambient_temperature"),   # below the 200 K row of the air table
+    (1500.0, 293.15, "inside_temperature"),   # film (T_i + T_a)/2 = 897 K, above 800 K
+])
+def test_pipe_in_still_air__air_table_range_names_its_own_parameter(T_i, T_a, quantity):
+    with pytest.raises(PhysicsRangeError) as caught:
+        pipe_in_still_air(0.1, [0.05], [0.04], T_i, T_a, 0.9)
+    assert caught.value.quantity == quantity
+
+
+def test_cylindrical_layers__bad_layer_named_with_its_index():
+    with pytest.raises(PhysicsRangeError) as caught:
+        cylindrical_layers(0.1, [0.003, 0.0], [50.0, 0.04], 350.0, 290.0, 10.0)
+    assert (caught.value.quantity, caught.value.index) == ("thicknesses", 1)
+    with pytest.raises(PhysicsRangeError) as caught:
+        cylindrical_layers(0.1, [0.003, 0.05], [50.0, -0.04], 350.0, 290.0, 10.0)
+    assert (caught.value.quantity, caught.value.index) == ("conductivities", 1)
+
+
+def test_dew_point__air_too_dry_for_the_formula_range_refused_at_the_humidity():
+    # ISO 13788 Annex E formulae held to -40..+80 degC here: at -30 degC and 5 %, the vapour
+    # pressure (about 1.9 Pa) is below the saturation pressure at -40 degC (about 12.6 Pa),
+    # both by the Annex E formula over ice (hand calculation).
+    with pytest.raises(PhysicsRangeError) as caught:
+        dew_point_temperature(-30.0 + C, 0.05)
+    assert caught.value.quantity == "relative_humidity"
+    with pytest.raises(PhysicsRangeError) as caught:
+        dew_point_temperature(90.0 + C, 0.5)
+    assert caught.value.quantity == "air_temperature"
+    with pytest.raises(PhysicsRangeError) as caught:
+        surface_relative_humidity(20.0 + C, 0.5, -45.0 + C)
+    assert caught.value.quantity == "surface_temperature"
+
+
+@pytest.mark.parametrize("T", [200.0, 213.7, 300.0, 367.0, 555.5, 800.0])
+def test_air_table_interval__interpolation_reproduces_air_properties(T):
+    # The rows returned, interpolated linearly, give air_properties' values (the kind writes
+    # this interpolation out as steps).
+    lower, upper = air.air_table_interval(T)
+    assert lower.temperature <= T <= upper.temperature
+    share = (T - lower.temperature) / (upper.temperature - lower.temperature)
+    props = air_properties(T)
+    for name in ("conductivity", "kinematic_viscosity", "thermal_diffusivity", "prandtl"):
+        low, high = getattr(lower, name), getattr(upper, name)
+        assert low + (high - low) * share == pytest.approx(getattr(props, name), rel=1e-12)
 
 
 def _lemmon_air(T: float, pressure: float = 1e5) -> dict:

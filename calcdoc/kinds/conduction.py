@@ -1,10 +1,11 @@
 """Steady conduction kinds: ``layered_wall`` (plane elements, ISO 6946 and ISO 13788) and
 ``cylindrical_layers`` (pipe and duct insulation).
 
-The physics is in :mod:`calcdoc.physics.conduction`; this module declares the inputs, turns the
-SI floats into steps a checker can follow by hand (each formula with its numbers substituted),
-records the notes that cite the clause behind every default applied, the warnings, and the data
-of the temperature-profile figure, which :func:`wall_figures` draws.
+The physics is in :mod:`calcdoc.physics.conduction`; this module declares the inputs and
+records, as data, the working a checker re-does by hand: every formula in the formula language
+over named operands (inputs as written, table and library values in full, earlier results),
+the notes that cite the clause behind every default applied, the warnings, and the figures
+(the wall's temperature profile, the pipe's radial profile) as :class:`FigureData`.
 """
 
 from __future__ import annotations
@@ -13,14 +14,14 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-
+from scipy.constants import g as STANDARD_GRAVITY
 from scipy.constants import zero_Celsius
 
-from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, REQUIRED, Choice, Figure, InputRecord,
-                                Items, Kind, MaterialField, Quantity, Record, ResultSpec, Text,
-                                _Invalid)
-from calcdoc.physics import PhysicsRangeError
-from calcdoc.physics.air import AIR_TABLE_SOURCE
+from calcdoc.data import Axis, Band, FigureData, Line, Mark
+from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, REQUIRED, Choice, InputRecord,
+                                InvalidInput, Items, Kind, MaterialField, Quantity, Record,
+                                ResultSpec, Text, Value, phrase)
+from calcdoc.physics.air import AIR_TABLE_SOURCE, air_table_interval
 from calcdoc.physics.conduction import (CHURCHILL_CHU_SOURCE, COMBINED_METHOD_SOURCE,
                                         SATURATION_PRESSURE_SOURCE, SURFACE_RESISTANCE_SOURCE,
                                         combined_method, cylinder_film_resistance,
@@ -29,12 +30,8 @@ from calcdoc.physics.conduction import (CHURCHILL_CHU_SOURCE, COMBINED_METHOD_SO
                                         pipe_in_still_air, plane_element,
                                         saturation_vapour_pressure, surface_relative_humidity,
                                         surface_resistances, temperature_factor)
-from calcdoc.units import convert
-from calcdoc.render.numbers import format_number, format_quantity, latex_number, latex_unit, pretty_unit
 
-__all__ = ["KINDS", "LAYERED_WALL", "CYLINDRICAL_LAYERS", "wall_figures"]
-
-ZERO_CELSIUS = zero_Celsius  # 273.15 K (scipy.constants)
+__all__ = ["KINDS", "LAYERED_WALL", "CYLINDRICAL_LAYERS"]
 
 SERIES_SOURCE = "ISO 6946:2017, 6.7.1, homogeneous layers in series (subclause number from memory)"
 CONDENSATION_RSI_SOURCE = ("ISO 13788:2012, internal surface resistance 0.25 m²·K/W of opaque "
@@ -46,6 +43,8 @@ MOULD_SOURCE = ("ISO 13788:2012, critical surface relative humidity of 80 % for 
 CORRECTIONS_SOURCE = "ISO 6946:2017, Annex F (corrections to U; from memory)"
 STEFAN_BOLTZMANN_SOURCE = "Stefan–Boltzmann law, σ from scipy.constants (CODATA)"
 RADIAL_SOURCE = "Fourier's law, radial conduction through coaxial cylindrical layers"
+BRENT_SOURCE = "Brent's method (scipy.optimize.brentq)"
+GRAVITY_SOURCE = "standard gravity, scipy.constants (CODATA)"
 
 _CAUTION_BASE = ("This calculation supports, and does not replace, the judgement of a licensed "
                  "engineer and the requirements of the local code and the authority having "
@@ -57,6 +56,28 @@ WALL_CAUTION = (_CAUTION_BASE + " Surface temperatures, condensation and mould f
 PIPE_CAUTION = (_CAUTION_BASE + " Surface temperatures: a hot surface can burn on contact "
                 "(contact thresholds: EN ISO 13732-1), and a cold surface below the dew point of "
                 "the surrounding air collects condensation, which wets the insulation.")
+
+# ISO 13788:2012 Annex E: p_sat = p_0 exp(a θ / (b + θ)), θ the temperature in °C as a number
+# (from memory, as the physics module records).
+_P_SAT_0 = 610.5  # Pa
+_OVER_WATER = (17.269, 237.3)
+_OVER_ICE = (21.875, 265.5)
+MOULD_THRESHOLD = 0.8  # ISO 13788:2012 critical surface relative humidity (from memory)
+_BRENT_TOLERANCE = 1e-9  # K, as pipe_in_still_air solves
+
+# Groups: one formula applied to each item of a list, printed as one table.
+GROUP_LAYERS = "Thermal resistance of each layer"
+GROUP_FRACTIONS = "Area fraction of each section"
+GROUP_SECTIONS = "Total resistance of each section (upper limit)"
+GROUP_LOWER = "Equivalent resistance of each bridged layer (lower limit)"
+GROUP_SCALED = "Layer resistances for the temperatures (lower limits scaled to R_T)"
+GROUP_TEMPERATURES = "Temperature at each interface"
+GROUP_CONDENSATION = "Sections with the condensation surface resistance"
+GROUP_DIAMETERS = "Outer diameter of each layer"
+GROUP_PIPE_LAYERS = "Resistance of each layer per metre"
+GROUP_AIR = "Air at the film temperature (linear interpolation in the table)"
+
+_ABC = "abcdefghijklmnopqrstuvwxyz"
 
 
 # ----------------------------------------------------------------------------- fields
@@ -82,15 +103,14 @@ class SurfaceResistance(Quantity):
         node = parent.get("heat_flow")
         heat_flow = "horizontal" if node is None else node.value
         if heat_flow not in ("horizontal", "upward", "downward"):
-            raise _Invalid  # heat_flow's own error is recorded where it is converted
+            raise InvalidInput  # heat_flow's own error is recorded where it is converted
         inside, outside = surface_resistances(heat_flow)
         value = inside if self.side == "inside" else outside
-        written = f"{value} m^2*K/W"
+        # Written as where it comes from; the number prints in full from the SI value.
         ctx.records.append(InputRecord(
-            path=path, meaning=self.meaning, written=written, si=value, si_unit=self.unit,
-            display=format_quantity(value, self.unit, None, ctx.precision),
-            source=f"{SURFACE_RESISTANCE_SOURCE}, heat flow {heat_flow}", origin="default",
-            loc=parent.loc))
+            path=path, meaning=self.meaning, written=f"ISO 6946 Table 7, {heat_flow} heat flow",
+            si=value, si_unit=self.unit, source=f"{SURFACE_RESISTANCE_SOURCE}, heat flow "
+            f"{heat_flow}", origin="default", loc=parent.loc))
         return _TableValue(value)
 
 
@@ -105,7 +125,7 @@ class ConductingMaterial(MaterialField):
                       "a material with a constant conductivity, or give conductivity",
                       "a temperature-dependent material" if entry.get("law")
                       else "a material without one")
-            raise _Invalid
+            raise InvalidInput
         return entry
 
 
@@ -143,58 +163,31 @@ PIPE_LAYER_FIELDS = (
 )
 
 
-# ----------------------------------------------------------------------------- formatting
+# ----------------------------------------------------------------------------- helpers
 
 
-def _num(value: float) -> str:
-    """A number as given by the user: up to six significant figures, no padding zeros."""
-    text = f"{value:.6g}"
-    if "e" in text:
-        mantissa, power = text.split("e")
-        return rf"{mantissa} \times 10^{{{int(power)}}}"
-    return text
-
-
-def _given(value_si: float, si_unit: str, display_unit: str | None = None) -> str:
-    """LaTeX of an input value in the unit it is shown in, without rounding it away."""
-    unit = display_unit or si_unit
-    value = convert(value_si, si_unit, unit)
-    lu = latex_unit(unit)
-    text = _num(value)
-    return f"{text}\\,{lu}" if lu else text
-
-
-def _given_text(value_si: float, si_unit: str, display_unit: str | None = None) -> str:
-    """Plain text of an input value, e.g. '0.13 m²·K/W'."""
-    unit = display_unit or si_unit
-    text = f"{convert(value_si, si_unit, unit):.6g}".replace("-", "−")
-    shown = pretty_unit(unit)
-    return f"{text} {shown}" if shown else text
-
-
-def _p(latex: str, value: float) -> str:
-    """Parenthesise a negative value inside a formula."""
-    return rf"\left({latex}\right)" if value < 0 else latex
-
-
-def _celsius(theta_k: float) -> float:
-    return theta_k - ZERO_CELSIUS
-
-
-def _layer_label(layer, j: int) -> str:
+def _layer_name(layer, j: int) -> str:
     return layer["name"] or f"layer {j}"
 
 
-def _conductivity(record) -> tuple[float, str]:
-    """(conductivity, source) of a layer or bridge given by value or by material."""
-    if record.get("material") is not None:
-        material = record["material"]
-        return material["conductivity"], material.get("source", "")
-    return record["conductivity"], ""
+def _conductivity(out, record, path: str) -> tuple[Value, str]:
+    """The conductivity of a layer or bridge as an operand, and the source of a library value:
+    an input prints as written, a library value in full."""
+    material = record.get("material")
+    if material is not None:
+        return (Value(material["conductivity"], "W/(m*K)", given=True),
+                material.get("source", ""))
+    return out.input(f"{path}.conductivity"), ""
 
 
-def _material_path(record, path: str) -> str:
-    return f"{path}.material" if record.get("material") is not None else f"{path}.conductivity"
+def _layer_label(j: int, name: str):
+    return phrase("Layer {j}, {name}", j=Value(j, given=True), name=Value(name))
+
+
+def _celsius_number(T: float, given: bool = False) -> Value:
+    """A temperature's number in °C as a dimensionless operand, for ISO 13788's empirical
+    formulas, which are written in °C."""
+    return Value(T - zero_Celsius, "1", given=given)
 
 
 # ----------------------------------------------------------------------------- layered_wall
@@ -202,321 +195,344 @@ def _material_path(record, path: str) -> str:
 
 def _wall_compute(inp, out):
     theta_i, theta_e = inp.inside_temperature, inp.outside_temperature
-    R_si, R_se = float(inp.inside_surface_resistance), float(inp.outside_surface_resistance)
-    _surface_resistance_notes(inp, out, R_si, R_se)
+    T_i, T_e = out.input("inside_temperature"), out.input("outside_temperature")
+    R_si, R_se = _surface_resistance_steps(inp, out)
+    r_si, r_se = R_si.si, R_se.si
 
-    # Each layer's resistance, and the bridged layers' second material.
-    layers = []
-    for j, layer in enumerate(inp.layers, start=1):
-        layers.append(_layer_step(out, layer, j))
-
+    layers = [_layer_steps(out, layer, j) for j, layer in enumerate(inp.layers, start=1)]
     bridged = [entry for entry in layers if entry["bridge"] is not None]
+    combined = None
     if bridged:
-        R_total, layer_R, sections = _combined(out, layers, bridged, R_si, R_se)
+        combined = _combined_steps(out, layers, bridged, R_si, R_se)
+        R_T = combined["R_T"]
+        for_temperatures = combined["scaled"]
     else:
-        layer_R = [entry["R"] for entry in layers]
-        R_total = R_si + sum(layer_R) + R_se
-        out.step("R_{T}", r"R_{si} + \sum_{j} R_{j} + R_{se}",
-                 " + ".join([_given(R_si, "m^2*K/W")]
-                            + [out.q(r, "m^2*K/W") for r in layer_R]
-                            + [_given(R_se, "m^2*K/W")]),
-                 R_total, "m^2*K/W", label="Total thermal resistance", source=SERIES_SOURCE)
-        sections = None
-    out.result("R_total", R_total)
+        expr = " + ".join(["R_si"] + [e["name"] for e in layers] + ["R_se"])
+        operands = {"R_si": R_si, "R_se": R_se, **{e["name"]: e["R"] for e in layers}}
+        value = r_si + sum(e["R"].si for e in layers) + r_se
+        R_T = out.step("R_T", expr, operands, value, label="Total thermal resistance",
+                       source=SERIES_SOURCE, yields="R_total")
+        for_temperatures = [e["R"] for e in layers]
 
-    U = 1.0 / R_total
-    out.step("U", r"\frac{1}{R_{T}}", rf"\frac{{1}}{{{out.q(R_total, 'm^2*K/W')}}}", U,
-             "W/(m^2*K)", label="Thermal transmittance", source=SERIES_SOURCE)
-    out.result("U", U)
+    out.step("U", "1 / R_T", {"R_T": R_T}, 1.0 / R_T.si, label="Thermal transmittance",
+             source=SERIES_SOURCE, yields="U")
     out.note("Corrections to U for air gaps in the insulation, mechanical fasteners crossing it "
              "and inverted roofs are not applied.", CORRECTIONS_SOURCE)
 
-    wall = plane_element(layer_R, theta_i, theta_e, R_si, R_se)
-    q = wall.q
-    dT = theta_i - theta_e
-    ti, te = _given(theta_i, "K", "degC"), _given(theta_e, "K", "degC")
-    out.step("q", r"\frac{\theta_{i} - \theta_{e}}{R_{T}}",
-             rf"\frac{{{ti} - {_p(te, _celsius(theta_e))}}}{{{out.q(R_total, 'm^2*K/W')}}}",
-             q, "W/m^2", label="Heat flux, positive inside to outside", source=SERIES_SOURCE)
-    out.result("q", q)
+    wall = plane_element([R.si for R in for_temperatures], theta_i, theta_e, r_si, r_se)
+    q = out.step("q", "(theta_i - theta_e) / R_T", {"theta_i": T_i, "theta_e": T_e, "R_T": R_T},
+                 wall.q, label="Heat flux, positive inside to outside", source=SERIES_SOURCE,
+                 yields="q")
     if inp.area is not None:
-        Q = q * inp.area
-        out.step("Q", "q A", rf"{out.q(q, 'W/m^2')} \cdot {_given(inp.area, 'm^2')}", Q, "W",
-                 label="Heat flow through the area")
-        out.result("Q", Q)
+        out.step("Q", "q * A", {"q": q, "A": out.input("area")}, wall.q * inp.area,
+                 label="Heat flow through the area", yields="Q")
 
     temperatures = [float(t) for t in wall.interface_temperatures]
-    _temperature_steps(out, temperatures, layers, layer_R, q, theta_i, theta_e, R_si, R_se,
+    _temperature_steps(out, temperatures, layers, for_temperatures, q, T_i, T_e, R_si, R_se,
                        bridged=bool(bridged))
-    out.result("theta_si", temperatures[0])
-    out.result("theta_se", temperatures[-1])
     out.result("interface_temperatures", temperatures)
 
-    surface = _condensation(inp, out, layers, sections, R_total, R_si, R_se)
+    surface = _condensation_steps(inp, out, layers, combined, R_T, R_si, R_se, T_i, T_e)
 
     if theta_i < theta_e and inp.inside_relative_humidity is not None:
         out.warn("The inside is colder than the outside: the condensation figures are for the "
                  "inside surface only. Write the element from its warm, humid side to assess "
                  "that side.")
-
-    out.figure_data["profile"] = {
-        "names": [_layer_label(layer, j) for j, layer in enumerate(inp.layers, start=1)],
-        "thicknesses_mm": [layer["thickness"] * 1000.0 for layer in inp.layers],
-        "bridges": [None if e["bridge"] is None else
-                    {"name": e["bridge"]["name"], "fraction": e["bridge"]["fraction"]}
-                    for e in layers],
-        "temperatures_degC": [_celsius(t) for t in temperatures],
-        "inside_degC": _celsius(theta_i),
-        "outside_degC": _celsius(theta_e),
-        "R_si": R_si,
-        "R_se": R_se,
-        "condensation_R_si": inp.condensation_surface_resistance,
-        "condensation_surface_degC": None if surface is None else _celsius(surface["theta"]),
-        "dew_point_degC": None if surface is None or surface["dew_point"] is None
-        else _celsius(surface["dew_point"]),
-    }
+    out.figure(_wall_figure(out, inp, layers, temperatures, surface))
 
 
-def _surface_resistance_notes(inp, out, R_si, R_se):
+def _surface_resistance_steps(inp, out) -> tuple[Value, Value]:
+    """State where each surface resistance comes from; return them as operands (inputs as
+    written or table values in full)."""
     table_si, table_se = surface_resistances(inp.heat_flow)
-    for side, value, table, symbol in (("inside", R_si, table_si, "R_si"),
-                                       ("outside", R_se, table_se, "R_se")):
-        name = f"{side}_surface_resistance"
-        shown = _given_text(value, "m^2*K/W")
-        if isinstance(getattr(inp, name), _TableValue):
-            out.note(f"{symbol} = {shown}: the conventional value for {inp.heat_flow} heat flow "
-                     f"({name} not given).", SURFACE_RESISTANCE_SOURCE)
-        elif abs(value - table) > 1e-12:
-            out.note(f"{symbol} = {shown} as given, in place of the conventional "
-                     f"{_given_text(table, 'm^2*K/W')} for {inp.heat_flow} heat flow.",
-                     SURFACE_RESISTANCE_SOURCE)
+    flow = Value(inp.heat_flow)
+    values = []
+    for side, name, table in (("inside", "R_si", table_si), ("outside", "R_se", table_se)):
+        field = f"{side}_surface_resistance"
+        given = getattr(inp, field)
+        operand = out.input(field)
+        label = f"{side.capitalize()} surface resistance"
+        if isinstance(given, _TableValue):
+            out.statement(name, "the conventional value for {flow} heat flow ({field} not "
+                          "given)", given, "m^2*K/W", values={"flow": flow, "field": Value(field)},
+                          label=label, source=SURFACE_RESISTANCE_SOURCE)
+        else:
+            text = "as given" if abs(given - table) <= 1e-12 else (
+                "as given, in place of the conventional {table} for {flow} heat flow")
+            out.statement(name, text, given, "m^2*K/W",
+                          values={"table": Value(table, "m^2*K/W", given=True), "flow": flow},
+                          label=label, source=SURFACE_RESISTANCE_SOURCE)
+        values.append(operand)
+    return values[0], values[1]
 
 
-def _layer_step(out, layer, j: int) -> dict:
-    d = layer["thickness"]
-    label = f"Layer {j}, {_layer_label(layer, j)}"
-    entry = {"R": None, "bridge": None, "index": j - 1, "label": label}
+def _layer_steps(out, layer, j: int) -> dict:
+    """Record a layer's resistance (and its bridge's), return what later steps need."""
+    path = f"layers[{j - 1}]"
+    name = _layer_name(layer, j)
+    entry = {"j": j, "name": f"R_{j}", "label": name, "layer": layer, "bridge": None}
+    d = out.input(f"{path}.thickness")
     if layer["resistance"] is not None:
-        entry["R"] = layer["resistance"]
-        out.note(f"{label}: thermal resistance R_{j} = "
-                 f"{_given_text(entry['R'], 'm^2*K/W')} as given (thickness "
-                 f"{_given_text(d, 'm', 'mm')} used for the drawing only).",
-                 layer["source"])
+        entry["R"] = out.input(f"{path}.resistance")
+        out.note("Layer {j}, {name}: thermal resistance as given; its thickness {d} is used for "
+                 "the drawing only.", layer["source"], j=Value(j, given=True), name=Value(name),
+                 d=d)
     else:
-        lam, material_source = _conductivity(layer)
-        entry["R"] = float(layer_resistance(d, lam))
-        out.step(f"R_{{{j}}}", rf"\frac{{d_{{{j}}}}}{{\lambda_{{{j}}}}}",
-                 rf"\frac{{{_given(d, 'm')}}}{{{_given(lam, 'W/(m*K)')}}}", entry["R"],
-                 "m^2*K/W", label=label, source=layer["source"] or material_source)
+        lam, material_source = _conductivity(out, layer, path)
+        value = float(layer_resistance(layer["thickness"], lam.si))
+        entry["R"] = out.step(f"R_{j}", f"d_{j} / lambda_{j}", {f"d_{j}": d, f"lambda_{j}": lam},
+                              value, "m^2*K/W", label=_layer_label(j, name),
+                              source=layer["source"] or material_source, group=GROUP_LAYERS,
+                              item=name)
     bridge = layer["bridge"]
     if bridge is not None:
-        lam_b, material_source = _conductivity(bridge)
-        R_b = float(layer_resistance(d, lam_b))
-        name = bridge["name"] or "bridge"
-        out.step(rf"R_{{{j},b}}", rf"\frac{{d_{{{j}}}}}{{\lambda_{{{j},b}}}}",
-                 rf"\frac{{{_given(d, 'm')}}}{{{_given(lam_b, 'W/(m*K)')}}}", R_b, "m^2*K/W",
-                 label=f"{label}, bridged part ({name}, "
-                       f"{format_quantity(bridge['fraction'], '1', '%', 3)} of the area)",
-                 source=bridge["source"] or material_source)
-        entry["bridge"] = {"R": R_b, "fraction": bridge["fraction"], "name": name,
-                           "path": _material_path(bridge, f"layers[{j - 1}].bridge")}
+        bridge_name = bridge["name"] or "bridge"
+        lam_b, material_source = _conductivity(out, bridge, f"{path}.bridge")
+        value = float(layer_resistance(layer["thickness"], lam_b.si))
+        R_b = out.step(f"R_{j}_b", f"d_{j} / lambda_{j}_b", {f"d_{j}": d, f"lambda_{j}_b": lam_b},
+                       value, "m^2*K/W",
+                       label=phrase("Layer {j}, {name}, bridged part ({bridge}, {f} of the "
+                                    "area)", j=Value(j, given=True), name=Value(name),
+                                    bridge=Value(bridge_name),
+                                    f=out.input(f"{path}.bridge.fraction")),
+                       source=bridge["source"] or material_source, group=GROUP_LAYERS,
+                       item=f"{name}: {bridge_name}")
+        entry["bridge"] = {"R": R_b, "name": bridge_name,
+                           "fraction": out.input(f"{path}.bridge.fraction")}
     return entry
 
 
-def _sections(bridged: list[dict]) -> list[tuple[float, list[bool]]]:
-    """Return the sections of the combined method as (fraction, bridged flag per bridged layer).
+def _sections(bridged: list[dict]) -> list[dict]:
+    """The sections of the combined method, clear section first.
 
     With the bridges assumed aligned (each narrower bridge lies within every wider one), the
-    section boundaries are the distinct bridge fractions: the clear section first, then sections
-    crossing more and more bridges."""
-    edges = sorted({b["bridge"]["fraction"] for b in bridged})
-    bounds = [0.0] + edges + [1.0]
+    section boundaries are the distinct bridge fractions F_1 < ... < F_k: the clear section
+    1 - F_k, then F_k - F_(k-1) crossing the widest bridges only, ..., and F_1 crossing every
+    bridge. Each section says which bridge fractions bound it and which layers it bridges."""
+    edges: dict[float, dict] = {}
+    for entry in bridged:  # one operand per distinct fraction: the first layer that gives it
+        edges.setdefault(entry["bridge"]["fraction"].si, entry)
+    ordered = sorted(edges)
     sections = []
-    for lo, hi in zip(bounds[:-1], bounds[1:]):
-        if hi - lo <= 0.0:
-            continue
-        flags = [b["bridge"]["fraction"] >= hi - 1e-15 for b in bridged]
-        sections.append((hi - lo, flags))
-    sections.reverse()  # clear section first
+    upper = None  # the bridge bounding the section from above (None: the whole area)
+    for value in reversed(ordered):
+        lower = edges[value]
+        sections.append({"upper": upper, "lower": lower})
+        upper = lower
+    sections.append({"upper": upper, "lower": None})
+    for section in sections:
+        top = 1.0 if section["upper"] is None else section["upper"]["bridge"]["fraction"].si
+        section["bridges"] = [e for e in bridged if e["bridge"]["fraction"].si >= top - 1e-15]
     return sections
 
 
-def _section_rows(layers, bridged, sections):
-    """The per-layer, per-section resistances for combined_method."""
-    rows = []
-    for entry in layers:
-        if entry["bridge"] is None:
-            rows.append(entry["R"])
-        else:
-            k = bridged.index(entry)
-            rows.append([entry["bridge"]["R"] if flags[k] else entry["R"]
-                         for _, flags in sections])
-    return rows
-
-
-def _run_combined(rows, fractions, R_si, R_se, bridged):
-    try:
-        return combined_method(rows, fractions, R_si, R_se)
-    except PhysicsRangeError as exc:
-        if exc.quantity != "R_upper/R_lower":
-            raise
-        # Locate the refusal at the bridge that does the most bridging.
-        worst = max(bridged, key=lambda e: e["bridge"]["fraction"]
-                    * (1.0 - e["bridge"]["R"] / e["R"]))
-        raise PhysicsRangeError(
-            worst["bridge"]["path"], f"R'_T/R''_T = {format_number(exc.value, 3)}",
-            "R'_T/R''_T <= 1.5 for the combined method (ISO 6946:2017 6.7.2); a bridge this "
-            "conductive needs a numerical calculation to ISO 10211") from None
-
-
-def _combined(out, layers, bridged, R_si, R_se):
-    sections = _sections(bridged)
-    names = "abcdefghijklmnopqrstuvwxyz"
-    fractions = [f for f, _ in sections]
-    rows = _section_rows(layers, bridged, sections)
-    cm = _run_combined(rows, fractions, R_si, R_se, bridged)
-
-    aligned = len(bridged) > 1
+def _combined_steps(out, layers, bridged, R_si, R_se) -> dict:
+    """The combined method of ISO 6946:2017 6.7.2 written out: section fractions, section
+    totals, the upper limit, each bridged layer's equivalent resistance, the lower limit, R_T,
+    the error estimate, and the layer resistances scaled to R_T for the temperatures."""
     out.note("Bridged layers: the combined method of ISO 6946:2017 (upper limit R'_T with "
              "parallel heat flow through each section, lower limit R''_T with isothermal planes "
              "in each layer; R_T their mean).", COMBINED_METHOD_SOURCE)
-    if aligned:
+    sections = _sections(bridged)
+    fraction_names = {e["j"]: f"f_{e['j']}" for e in bridged}
+
+    # Section fractions, each from the bridge fractions that bound it.
+    fractions = []
+    for m, section in enumerate(sections):
+        letter = _ABC[m]
+        upper, lower = section["upper"], section["lower"]
+        operands, terms = {}, []
+        if upper is None:
+            terms.append("1")
+        else:
+            terms.append(fraction_names[upper["j"]])
+            operands[fraction_names[upper["j"]]] = upper["bridge"]["fraction"]
+        if lower is not None:
+            terms.append(fraction_names[lower["j"]])
+            operands[fraction_names[lower["j"]]] = lower["bridge"]["fraction"]
+        top = 1.0 if upper is None else upper["bridge"]["fraction"].si
+        bottom = 0.0 if lower is None else lower["bridge"]["fraction"].si
+        section["what"] = ("clear of bridges" if not section["bridges"] else
+                           "through " + ", ".join(e["bridge"]["name"] for e in section["bridges"]))
+        fractions.append(out.step(f"f_{letter}", " - ".join(terms), operands, top - bottom,
+                                  display="%", label=phrase("Section {m}, {what}",
+                                                            m=Value(letter),
+                                                            what=Value(section["what"])),
+                                  source=COMBINED_METHOD_SOURCE, group=GROUP_FRACTIONS,
+                                  item=letter))
+    if len(bridged) > 1:
         text = ("Several layers are bridged: the bridges are assumed aligned (each narrower "
-                "bridge lies within the wider ones), which defines "
-                f"{len(sections)} sections of fractions "
-                + ", ".join(format_quantity(f, '1', '%', 3) for f in fractions) + ".")
-        if all(e["bridge"]["R"] <= e["R"] for e in bridged):
+                "bridge lies within the wider ones), which defines {n} sections.")
+        if all(e["bridge"]["R"].si <= e["R"].si for e in bridged):
             text += (" With every bridge conducting better than its layer, this gives the lowest "
                      "upper limit of all arrangements of the same fractions (conservative for "
                      "U).")
         else:
             text += " Another arrangement of the bridges gives a different upper limit."
-        out.note(text, COMBINED_METHOD_SOURCE)
+        out.note(text, COMBINED_METHOD_SOURCE, n=Value(len(sections), given=True))
 
-    section_totals = []
-    for m, (f, flags) in enumerate(sections):
-        name = names[m]
-        terms = [_given(R_si, "m^2*K/W")]
-        for entry, row in zip(layers, rows):
-            value = row if not isinstance(row, list) else row[m]
-            terms.append(out.q(value, "m^2*K/W"))
-        terms.append(_given(R_se, "m^2*K/W"))
-        total = R_si + sum(r if not isinstance(r, list) else r[m] for r in rows) + R_se
-        section_totals.append(total)
-        crossed = [e["bridge"]["name"] for e, flag in zip(bridged, flags) if flag]
-        what = "clear of bridges" if not crossed else "through " + ", ".join(crossed)
-        out.step(rf"R_{{T{name}}}", rf"R_{{si}} + \sum_{{j}} R_{{{name}j}} + R_{{se}}",
-                 " + ".join(terms), total, "m^2*K/W",
-                 label=f"Section {name} ({what}), f_{name} = "
-                       f"{format_quantity(f, '1', '%', 3)}",
-                 source=COMBINED_METHOD_SOURCE)
-    sum_terms = " + ".join(rf"\frac{{{_num(f)}}}{{{out.q(R, 'm^2*K/W')}}}"
-                           for f, R in zip(fractions, section_totals))
-    out.step(r"R'_{T}", r"\frac{1}{\sum_{m} f_{m}/R_{Tm}}",
-             rf"\frac{{1}}{{{sum_terms}}}", cm.R_upper, "m^2*K/W",
-             label="Upper limit of the total thermal resistance", source=COMBINED_METHOD_SOURCE)
+    def in_section(entry, section) -> tuple[str, Value]:
+        if entry in section["bridges"]:
+            return f"R_{entry['j']}_b", entry["bridge"]["R"]
+        return entry["name"], entry["R"]
 
-    lower = []
-    for entry, row in zip(layers, rows):
-        if not isinstance(row, list):
-            lower.append(out.q(row, "m^2*K/W"))
+    rows = [e["R"].si if e["bridge"] is None else [in_section(e, s)[1].si for s in sections]
+            for e in layers]
+    f_values = [f.si for f in fractions]
+    cm = combined_method(rows, f_values, R_si.si, R_se.si)
+
+    # Upper limit: the sections in parallel.
+    totals = []
+    for m, section in enumerate(sections):
+        names, operands = ["R_si"], {"R_si": R_si, "R_se": R_se}
+        value = R_si.si
+        for entry in layers:
+            name, R = in_section(entry, section)
+            names.append(name)
+            operands[name] = R
+            value += R.si
+        value += R_se.si
+        totals.append(out.step(f"R_T_{_ABC[m]}", " + ".join(names + ["R_se"]), operands, value,
+                               "m^2*K/W", label=phrase("Section {m}, {what}",
+                                                       m=Value(_ABC[m]),
+                                                       what=Value(section["what"])),
+                               source=COMBINED_METHOD_SOURCE, group=GROUP_SECTIONS,
+                               item=_ABC[m]))
+    parallel = " + ".join(f"f_{_ABC[m]} / R_T_{_ABC[m]}" for m in range(len(sections)))
+    operands = {**{f"f_{_ABC[m]}": f for m, f in enumerate(fractions)},
+                **{f"R_T_{_ABC[m]}": R for m, R in enumerate(totals)}}
+    upper = out.step("R_T_upper", f"1 / ({parallel})", operands, cm.R_upper,
+                     label="Upper limit of the total thermal resistance",
+                     source=COMBINED_METHOD_SOURCE, yields="R_upper",
+                     symbols={"R_T_upper": "R'_{T}"})
+
+    # Lower limit: each bridged layer's sections in parallel, then the layers in series.
+    lower_names, lower_operands = ["R_si"], {"R_si": R_si, "R_se": R_se}
+    lower_values = []
+    for entry in layers:
+        if entry["bridge"] is None:
+            lower_names.append(entry["name"])
+            lower_operands[entry["name"]] = entry["R"]
+            lower_values.append(entry["R"])
             continue
-        j = entry["index"] + 1
-        R_j = 1.0 / sum(f / r for f, r in zip(fractions, row))
-        terms = " + ".join(rf"\frac{{{_num(f)}}}{{{out.q(r, 'm^2*K/W')}}}"
-                           for f, r in zip(fractions, row))
-        out.step(rf"R''_{{{j}}}", r"\frac{1}{\sum_{m} f_{m}/R_{mj}}",
-                 rf"\frac{{1}}{{{terms}}}", R_j, "m^2*K/W",
-                 label=f"{entry['label']}, equivalent resistance for the lower limit",
-                 source=COMBINED_METHOD_SOURCE)
-        lower.append(out.q(R_j, "m^2*K/W"))
-    out.step(r"R''_{T}", r"R_{si} + \sum_{j} R''_{j} + R_{se}",
-             " + ".join([_given(R_si, "m^2*K/W")] + lower + [_given(R_se, "m^2*K/W")]),
-             cm.R_lower, "m^2*K/W", label="Lower limit of the total thermal resistance",
-             source=COMBINED_METHOD_SOURCE)
-    out.step("R_{T}", r"\frac{R'_{T} + R''_{T}}{2}",
-             rf"\frac{{{out.q(cm.R_upper, 'm^2*K/W')} + {out.q(cm.R_lower, 'm^2*K/W')}}}{{2}}",
-             cm.R_total, "m^2*K/W", label="Total thermal resistance (combined method)",
-             source=COMBINED_METHOD_SOURCE)
-    out.step("e", r"\frac{R'_{T} - R''_{T}}{2 R_{T}}",
-             rf"\frac{{{out.q(cm.R_upper, 'm^2*K/W')} - {out.q(cm.R_lower, 'm^2*K/W')}}}"
-             rf"{{2 \cdot {out.q(cm.R_total, 'm^2*K/W')}}}",
-             cm.relative_error, "1", label="Maximum relative error of R_T",
-             source=COMBINED_METHOD_SOURCE, display_unit="%")
-    out.result("R_upper", cm.R_upper)
-    out.result("R_lower", cm.R_lower)
+        j = entry["j"]
+        terms, operands = [], {}
+        for m, section in enumerate(sections):
+            name, R = in_section(entry, section)
+            terms.append(f"f_{_ABC[m]} / {name}")
+            operands[f"f_{_ABC[m]}"] = fractions[m]
+            operands[name] = R
+        value = 1.0 / sum(f.si / in_section(entry, s)[1].si for f, s in zip(fractions, sections))
+        R_j = out.step(f"R_{j}_lower", "1 / (" + " + ".join(terms) + ")", operands, value,
+                       "m^2*K/W", label=_layer_label(j, entry["label"]),
+                       source=COMBINED_METHOD_SOURCE, group=GROUP_LOWER, item=entry["label"],
+                       symbols={f"R_{j}_lower": f"R''_{{{j}}}"})
+        lower_names.append(f"R_{j}_lower")
+        lower_operands[f"R_{j}_lower"] = R_j
+        lower_values.append(R_j)
+    lower = out.step("R_T_lower", " + ".join(lower_names + ["R_se"]), lower_operands, cm.R_lower,
+                     label="Lower limit of the total thermal resistance",
+                     source=COMBINED_METHOD_SOURCE, yields="R_lower",
+                     symbols={"R_T_lower": "R''_{T}", **_lower_symbols(layers)})
+    R_T = out.step("R_T", "(R_T_upper + R_T_lower) / 2", {"R_T_upper": upper, "R_T_lower": lower},
+                   cm.R_total, label="Total thermal resistance (combined method)",
+                   source=COMBINED_METHOD_SOURCE, yields="R_total",
+                   symbols={"R_T_upper": "R'_{T}", "R_T_lower": "R''_{T}"})
+    out.step("e", "(R_T_upper - R_T_lower) / (2 * R_T)",
+             {"R_T_upper": upper, "R_T_lower": lower, "R_T": R_T}, cm.relative_error,
+             display="%", label="Maximum relative error of R_T", source=COMBINED_METHOD_SOURCE,
+             symbols={"R_T_upper": "R'_{T}", "R_T_lower": "R''_{T}"})
+
+    # Temperatures of an inhomogeneous element: the lower-limit layer resistances scaled by
+    # one factor so that with R_si and R_se they sum to R_T (the physics module's convention).
     out.note("Temperatures through the bridged element are area means: each layer takes its "
              "lower-limit resistance R''_j scaled so that the layers and surfaces sum to R_T "
              "(ISO 6946 defines no layer temperatures for an inhomogeneous element).",
              COMBINED_METHOD_SOURCE)
-    return cm.R_total, [float(r) for r in cm.layer_resistances], (sections, rows, fractions,
-                                                                   bridged)
+    names = [n for n in lower_names[1:]]
+    operands = {"R_T": R_T, "R_si": R_si, "R_se": R_se,
+                **{n: v for n, v in zip(names, lower_values)}}
+    scale_value = (R_T.si - R_si.si - R_se.si) / sum(v.si for v in lower_values)
+    scale = out.step("s", "(R_T - R_si - R_se) / (" + " + ".join(names) + ")", operands,
+                     scale_value, label="Scale factor of the layer resistances for the "
+                     "temperatures", source=COMBINED_METHOD_SOURCE, symbols=_lower_symbols(layers))
+    scaled = []
+    for entry, name, R in zip(layers, names, lower_values):
+        j = entry["j"]
+        scaled.append(out.step(f"R_{j}_s", f"s * {name}", {"s": scale, name: R},
+                               float(cm.layer_resistances[j - 1]), "m^2*K/W",
+                               label=_layer_label(j, entry["label"]),
+                               source=COMBINED_METHOD_SOURCE, group=GROUP_SCALED,
+                               item=entry["label"],
+                               symbols={f"R_{j}_s": f"R^{{*}}_{{{j}}}",
+                                        **_lower_symbols(layers)}))
+    return {"R_T": R_T, "scaled": scaled, "sections": sections, "fractions": fractions,
+            "totals": totals, "lower": lower, "rows": rows}
 
 
-def _temperature_steps(out, temperatures, layers, layer_R, q, theta_i, theta_e, R_si, R_se,
+def _lower_symbols(layers) -> dict:
+    return {f"R_{e['j']}_lower": f"R''_{{{e['j']}}}" for e in layers if e["bridge"] is not None}
+
+
+def _temperature_steps(out, temperatures, layers, resistances, q, T_i, T_e, R_si, R_se,
                        bridged: bool):
-    qq = out.q(q, "W/m^2")
-    out.step(r"\theta_{si}", r"\theta_{i} - q R_{si}",
-             rf"{_given(theta_i, 'K', 'degC')} - {_p(qq, q)} \cdot {_given(R_si, 'm^2*K/W')}",
-             temperatures[0], "K", label="Inside surface temperature", display_unit="degC",
-             source=SERIES_SOURCE)
-    symbol = "R''^{*}" if bridged else "R"
-    for k, (entry, R) in enumerate(zip(layers, layer_R), start=1):
-        previous = temperatures[k - 1]
-        prev = out.q(previous, "K", "degC")
-        out.step(rf"\theta_{{{k}}}", rf"\theta_{{{k - 1}}} - q {symbol}_{{{k}}}",
-                 rf"{prev} - {_p(qq, q)} \cdot {out.q(R, 'm^2*K/W')}", temperatures[k], "K",
-                 label=f"Temperature on the outer face of {entry['label'].lower()}",
-                 display_unit="degC", source=SERIES_SOURCE)
-    out.step(r"\theta_{se}", r"\theta_{e} + q R_{se}",
-             rf"{_p(_given(theta_e, 'K', 'degC'), _celsius(theta_e))} + {_p(qq, q)} \cdot "
-             rf"{_given(R_se, 'm^2*K/W')}",
-             theta_e + q * R_se, "K", label="Outside surface temperature", display_unit="degC",
-             source=SERIES_SOURCE)
+    """The temperature at each surface and interface, from the inside air outward, and the
+    outside surface again from the outside air (the two agree: the sum closes)."""
+    symbols = {f"R_{e['j']}_s": f"R^{{*}}_{{{e['j']}}}" for e in layers} if bridged else {}
+    previous = out.step("theta_si", "theta_i - q * R_si", {"theta_i": T_i, "q": q, "R_si": R_si},
+                        temperatures[0], "K", temperature=ABSOLUTE,
+                        label="Inside surface temperature", source=SERIES_SOURCE,
+                        yields="theta_si", group=GROUP_TEMPERATURES, item="inside surface")
+    previous_name = "theta_si"
+    for k, (entry, R) in enumerate(zip(layers, resistances), start=1):
+        R_name = f"R_{entry['j']}_s" if bridged else entry["name"]
+        last = k == len(layers)
+        item = "outside surface" if last else f"{entry['label']} | {layers[k]['label']}"
+        value = out.step(f"theta_{k}", f"{previous_name} - q * {R_name}",
+                         {previous_name: previous, "q": q, R_name: R}, temperatures[k], "K",
+                         temperature=ABSOLUTE,
+                         label=phrase("Outer face of layer {j}, {name}", j=Value(k, given=True),
+                                      name=Value(entry["label"])),
+                         source=SERIES_SOURCE, group=GROUP_TEMPERATURES, item=item,
+                         symbols=symbols)
+        previous, previous_name = value, f"theta_{k}"
+    out.step("theta_se", "theta_e + q * R_se", {"theta_e": T_e, "q": q, "R_se": R_se},
+             T_e.si + q.si * R_se.si, "K", temperature=ABSOLUTE,
+             label="Outside surface temperature, from the outside air", source=SERIES_SOURCE,
+             yields="theta_se", group=GROUP_TEMPERATURES, item="outside surface, from outside")
 
 
-def _condensation(inp, out, layers, sections, R_total, R_si, R_se):
-    """f_Rsi with the condensation surface resistance, and the humidity figures when given."""
+def _condensation_steps(inp, out, layers, combined, R_T, R_si, R_se, T_i, T_e) -> dict:
+    """θsi′ and f_Rsi with the condensation surface resistance; with humidity, the saturation
+    pressures, dew point, condensation margin and surface relative humidity."""
     theta_i, theta_e = inp.inside_temperature, inp.outside_temperature
-    R_c = inp.condensation_surface_resistance
-    out.note(f"Surface humidity and mould figures use R_si = {_given_text(R_c, 'm^2*K/W')} at the "
-             "inside surface, never U.", CONDENSATION_RSI_SOURCE)
-    if sections is None:
-        R_Tc = R_total - R_si + R_c
-        out.step("R_{T,c}", r"R_{T} - R_{si} + R_{si,c}",
-                 rf"{out.q(R_total, 'm^2*K/W')} - {_given(R_si, 'm^2*K/W')} + "
-                 rf"{_given(R_c, 'm^2*K/W')}", R_Tc, "m^2*K/W",
-                 label="Total resistance with the condensation surface resistance",
-                 source=CONDENSATION_RSI_SOURCE)
+    R_c = out.input("condensation_surface_resistance")
+    out.note("Surface humidity and mould figures use R_si,sc = {R} at the inside surface, never "
+             "U.", CONDENSATION_RSI_SOURCE, R=R_c)
+    if combined is None:
+        R_Tc = out.step("R_T_sc", "R_T - R_si + R_si_sc",
+                        {"R_T": R_T, "R_si": R_si, "R_si_sc": R_c}, R_T.si - R_si.si + R_c.si,
+                        "m^2*K/W",
+                        label="Total resistance with the condensation surface resistance",
+                        source=CONDENSATION_RSI_SOURCE)
     else:
-        section_list, rows, fractions, bridged = sections
-        cm = _run_combined(rows, fractions, R_c, R_se, bridged)
-        R_Tc = cm.R_total
-        out.step("R_{T,c}", r"\frac{R'_{T,c} + R''_{T,c}}{2}",
-                 rf"\frac{{{out.q(cm.R_upper, 'm^2*K/W')} + {out.q(cm.R_lower, 'm^2*K/W')}}}"
-                 "{2}", R_Tc, "m^2*K/W",
-                 label="Total resistance with the condensation surface resistance (combined "
-                       "method repeated with R_si,c)", source=CONDENSATION_RSI_SOURCE)
-    dT = theta_i - theta_e
-    theta_sc = theta_i - dT * R_c / R_Tc
-    ti, te = _given(theta_i, "K", "degC"), _given(theta_e, "K", "degC")
-    out.step(r"\theta_{si}^{\prime}", r"\theta_{i} - (\theta_{i} - \theta_{e}) "
-             r"\frac{R_{si,c}}{R_{T,c}}",
-             rf"{ti} - \left({ti} - {_p(te, _celsius(theta_e))}\right) "
-             rf"\frac{{{_given(R_c, 'm^2*K/W')}}}{{{out.q(R_Tc, 'm^2*K/W')}}}",
-             theta_sc, "K", label="Inside surface temperature for surface humidity",
-             display_unit="degC", source=CONDENSATION_RSI_SOURCE)
-    if dT == 0.0:
+        R_Tc = _combined_condensation_steps(out, combined, R_si, R_se, R_c)
+    theta_sc = theta_i - (theta_i - theta_e) * R_c.si / R_Tc.si
+    surface = out.step("theta_si_sc", "theta_i - (theta_i - theta_e) * R_si_sc / R_T_sc",
+                       {"theta_i": T_i, "theta_e": T_e, "R_si_sc": R_c, "R_T_sc": R_Tc}, theta_sc,
+                       "K", temperature=ABSOLUTE,
+                       label="Inside surface temperature for surface humidity",
+                       source=CONDENSATION_RSI_SOURCE, symbols={"theta_si_sc": r"\theta_{si}'"})
+    if theta_i == theta_e:
         out.not_reached("f_Rsi", "undefined: the inside and outside temperatures are equal")
     else:
-        f = float(temperature_factor(theta_sc, theta_i, theta_e))
-        out.step("f_{Rsi}", r"\frac{\theta_{si}^{\prime} - \theta_{e}}{\theta_{i} - \theta_{e}}",
-                 rf"\frac{{{out.q(theta_sc, 'K', 'degC')} - {_p(te, _celsius(theta_e))}}}"
-                 rf"{{{ti} - {_p(te, _celsius(theta_e))}}}", f, "1",
+        out.step("f_Rsi", "(theta_si_sc - theta_e) / (theta_i - theta_e)",
+                 {"theta_si_sc": surface, "theta_e": T_e, "theta_i": T_i},
+                 float(temperature_factor(theta_sc, theta_i, theta_e)),
                  label="Temperature factor at the inside surface",
-                 source=TEMPERATURE_FACTOR_SOURCE)
-        out.result("f_Rsi", f)
-    if sections is not None:
+                 source=TEMPERATURE_FACTOR_SOURCE, yields="f_Rsi",
+                 symbols={"theta_si_sc": r"\theta_{si}'"})
+    if combined is not None:
         out.warn("f_Rsi and the surface humidity of a bridged element are area means; the "
                  "surface over a bridge is colder. Find its minimum temperature by a numerical "
                  "calculation (ISO 10211) before relying on the mould or condensation result.",
@@ -525,399 +541,376 @@ def _condensation(inp, out, layers, sections, R_total, R_si, R_se):
     phi = inp.inside_relative_humidity
     if phi is None:
         return {"theta": theta_sc, "dew_point": None}
-    p_v, dew = _dew_point_steps(out, theta_i, phi, r"\theta_{i}", r"\varphi_{i}", "inside",
-                                ("inside_temperature", "inside_relative_humidity"))
-    try:
-        phi_s = float(surface_relative_humidity(theta_i, phi, theta_sc))
-        p_sat_s = float(saturation_vapour_pressure(theta_sc))
-    except PhysicsRangeError as exc:
-        raise PhysicsRangeError("inside_temperature", exc.value,
-                                f"{exc.quantity} {exc.expected}") from None
-    margin = theta_sc - dew
-    out.step(r"\Delta\theta_{c}", r"\theta_{si}^{\prime} - \theta_{dp}",
-             rf"{out.q(theta_sc, 'K', 'degC')} - {_p(out.q(dew, 'K', 'degC'), _celsius(dew))}",
-             margin, "K", label="Condensation margin at the inside surface",
-             source=SATURATION_PRESSURE_SOURCE)
-    surface = r"\theta_{si}^{\prime}"
-    out.step(rf"p_{{sat}}({surface})", _p_sat_formula(_celsius(theta_sc), surface),
-             _p_sat_substituted(_celsius(theta_sc)), p_sat_s, "Pa",
-             label="Saturation vapour pressure at the inside surface",
-             source=SATURATION_PRESSURE_SOURCE)
-    out.step(r"\varphi_{si}", r"\frac{p_{v}}{p_{sat}(\theta_{si}^{\prime})}",
-             rf"\frac{{{out.q(p_v, 'Pa')}}}{{{out.q(p_sat_s, 'Pa')}}}", phi_s, "1",
-             display_unit="%", label="Relative humidity at the inside surface",
-             source=MOULD_SOURCE)
-    out.result("dew_point", dew)
-    out.result("condensation_margin", margin)
-    out.result("surface_relative_humidity", phi_s)
+    # Order matters for where a refusal is located: the air first (inside_temperature, then
+    # inside_relative_humidity), then the surface (outside_temperature).
+    p_v, dew, dew_value = _dew_point_steps(out, theta_i, T_i, out.input("inside_relative_humidity"),
+                                           "i", "inside")
+    phi_s = float(surface_relative_humidity(theta_i, phi, theta_sc))
+    p_sat_s = _saturation_step(out, theta_sc, "si_sc", "Saturation vapour pressure at the inside "
+                               "surface", symbols={"theta_si_sc": r"\theta_{si}'",
+                                                   "p_sat_si_sc": r"p_{sat}(\theta_{si}')"})
+    margin = out.step("Delta_theta", "theta_si_sc - theta_dp", {"theta_si_sc": surface,
+                                                              "theta_dp": dew},
+                      theta_sc - dew_value, "K", temperature=DIFFERENCE,
+                      label="Condensation margin at the inside surface",
+                      source=SATURATION_PRESSURE_SOURCE, yields="condensation_margin",
+                      symbols={"Delta_theta": r"\Delta\theta_{c}",
+                               "theta_si_sc": r"\theta_{si}'"})
+    phi_shown = out.step("varphi_si", "p_v / p_sat_si_sc", {"p_v": p_v, "p_sat_si_sc": p_sat_s},
+                         phi_s, label="Relative humidity at the inside surface",
+                         source=MOULD_SOURCE, yields="surface_relative_humidity",
+                         symbols={"p_sat_si_sc": r"p_{sat}(\theta_{si}')"})
     out.note("Interstitial condensation (the ISO 13788 monthly method) is not assessed by this "
              "block.", "ISO 13788:2012")
-    if margin < 0.0:
-        out.warn(f"The inside surface ({out.qt(theta_sc, 'K', 'degC')}) is below the dew point "
-                 f"of the inside air ({out.qt(dew, 'K', 'degC')}): surface condensation is "
-                 "expected.", SATURATION_PRESSURE_SOURCE)
-    if phi_s >= 0.8:
-        out.warn(f"Surface relative humidity {out.qt(phi_s, '1', '%')} reaches the 80 % "
-                 "criterion for mould growth.", MOULD_SOURCE)
-    return {"theta": theta_sc, "dew_point": dew}
+    if margin.si < 0.0:
+        out.warn("The inside surface ({surface}) is below the dew point of the inside air "
+                 "({dew}): surface condensation is expected.", SATURATION_PRESSURE_SOURCE,
+                 surface=surface, dew=dew)
+    if phi_s >= MOULD_THRESHOLD:
+        out.warn("Surface relative humidity {phi} reaches the {limit} criterion for mould "
+                 "growth.", MOULD_SOURCE, phi=phi_shown,
+                 limit=Value(MOULD_THRESHOLD, "1", "%", given=True))
+    return {"theta": theta_sc, "dew_point": dew_value}
 
 
-def _dew_point_steps(out, T_air: float, phi: float, symbol: str, phi_symbol: str, which: str,
-                     inputs: tuple[str, str]) -> tuple[float, float]:
-    """Record the saturation pressure, vapour pressure and dew point steps of moist air and
-    return (vapour pressure [Pa], dew point [K]); out-of-range values are located at
-    ``inputs`` (temperature, humidity)."""
-    try:
-        p_sat = float(saturation_vapour_pressure(T_air))
-        dew = float(dew_point_temperature(T_air, phi))
-    except PhysicsRangeError as exc:
-        target = inputs[1] if exc.quantity == "vapour pressure" else inputs[0]
-        raise PhysicsRangeError(target, exc.value, f"{exc.quantity} {exc.expected}") from None
-    p_v = phi * p_sat
-    out.note("Saturation vapour pressure over water at or above 0 °C and over ice below it.",
-             SATURATION_PRESSURE_SOURCE)
-    out.step(rf"p_{{sat}}({symbol})", _p_sat_formula(_celsius(T_air), symbol),
-             _p_sat_substituted(_celsius(T_air)), p_sat, "Pa",
-             label=f"Saturation vapour pressure of the {which} air",
-             source=SATURATION_PRESSURE_SOURCE)
-    out.step("p_{v}", rf"{phi_symbol}\, p_{{sat}}({symbol})",
-             rf"{_given(phi, '1', '%')} \cdot {out.q(p_sat, 'Pa')}", p_v, "Pa",
-             label=f"Vapour pressure of the {which} air", source=SATURATION_PRESSURE_SOURCE)
-    x = math.log(p_v / 610.5)
-    a, b = (17.269, 237.3) if x >= 0.0 else (21.875, 265.5)
-    shown_x = _p(latex_number(x, 4), x)
-    out.step(r"\theta_{dp}", rf"\frac{{{b}\, x}}{{{a} - x}},\ x = \ln\frac{{p_{{v}}}}{{610.5}}",
-             rf"\frac{{{b} \cdot {shown_x}}}{{{a} - {shown_x}}},\ "
-             rf"x = \ln\frac{{{out.q(p_v, 'Pa')}}}{{610.5\,\mathrm{{Pa}}}}", dew, "K",
-             label=f"Dew point of the {which} air" + (" (frost point, over ice)" if x < 0 else ""),
-             display_unit="degC", source=SATURATION_PRESSURE_SOURCE)
-    return p_v, dew
+def _combined_condensation_steps(out, combined, R_si, R_se, R_c) -> Value:
+    """The combined method again with R_si,sc in place of R_si: each section total and the lower
+    limit shift by R_si,sc − R_si; the limits' mean is R_T,sc."""
+    sections, fractions = combined["sections"], combined["fractions"]
+    cm = combined_method(combined["rows"], [f.si for f in fractions], R_c.si, R_se.si)
+    totals = []
+    for m, R_T_m in enumerate(combined["totals"]):
+        letter = _ABC[m]
+        totals.append(out.step(f"R_T_sc_{letter}", f"R_T_{letter} - R_si + R_si_sc",
+                               {f"R_T_{letter}": R_T_m, "R_si": R_si, "R_si_sc": R_c},
+                               R_T_m.si - R_si.si + R_c.si, "m^2*K/W",
+                               label=phrase("Section {m}, {what}", m=Value(letter),
+                                            what=Value(sections[m]["what"])),
+                               source=CONDENSATION_RSI_SOURCE, group=GROUP_CONDENSATION,
+                               item=letter))
+    parallel = " + ".join(f"f_{_ABC[m]} / R_T_sc_{_ABC[m]}" for m in range(len(sections)))
+    operands = {**{f"f_{_ABC[m]}": f for m, f in enumerate(fractions)},
+                **{f"R_T_sc_{_ABC[m]}": R for m, R in enumerate(totals)}}
+    symbols = {"R_T_sc_upper": "R'_{T,sc}", "R_T_sc_lower": "R''_{T,sc}", "R_T_lower": "R''_{T}"}
+    upper = out.step("R_T_sc_upper", f"1 / ({parallel})", operands, cm.R_upper, "m^2*K/W",
+                     label="Upper limit with the condensation surface resistance",
+                     source=CONDENSATION_RSI_SOURCE, symbols=symbols)
+    lower = out.step("R_T_sc_lower", "R_T_lower - R_si + R_si_sc",
+                     {"R_T_lower": combined["lower"], "R_si": R_si, "R_si_sc": R_c},
+                     combined["lower"].si - R_si.si + R_c.si, "m^2*K/W",
+                     label="Lower limit with the condensation surface resistance",
+                     source=CONDENSATION_RSI_SOURCE, symbols=symbols)
+    return out.step("R_T_sc", "(R_T_sc_upper + R_T_sc_lower) / 2",
+                    {"R_T_sc_upper": upper, "R_T_sc_lower": lower}, cm.R_total, "m^2*K/W",
+                    label="Total resistance with the condensation surface resistance (combined "
+                          "method)", source=CONDENSATION_RSI_SOURCE, symbols=symbols)
 
 
-def _p_sat_formula(theta_c: float, symbol: str) -> str:
-    a, b = (17.269, 237.3) if theta_c >= 0.0 else (21.875, 265.5)
-    return rf"610.5\,\mathrm{{Pa}} \cdot \exp\left(\frac{{{a}\, {symbol}}}{{{b} + {symbol}}}\right)"
+def _saturation_step(out, T: float, suffix: str, label: str, given: bool = False,
+                     symbols: dict | None = None) -> Value:
+    """p_sat by ISO 13788 Annex E, over water at or above 0 °C and over ice below it, with the
+    temperature's °C number as a dimensionless operand."""
+    theta = T - zero_Celsius
+    a, b = _OVER_WATER if theta >= 0.0 else _OVER_ICE
+    name = f"theta_{suffix}"
+    value = float(saturation_vapour_pressure(T))
+    branch = " (over water, θ ≥ 0 °C; θ as its number in °C)" if theta >= 0.0 else \
+        " (over ice, θ < 0 °C; θ as its number in °C)"
+    return out.step(f"p_sat_{suffix}", f"p_0 * exp(a * {name} / (b + {name}))",
+                    {"p_0": Value(_P_SAT_0, "Pa", given=True), "a": Value(a, given=True),
+                     "b": Value(b, given=True), name: _celsius_number(T, given)},
+                    value, "Pa", label=label + branch, source=SATURATION_PRESSURE_SOURCE,
+                    symbols=symbols)
 
 
-def _p_sat_substituted(theta_c: float) -> str:
-    a, b = (17.269, 237.3) if theta_c >= 0.0 else (21.875, 265.5)
-    t = _p(_num(round(theta_c, 2)), theta_c)
-    return rf"610.5\,\mathrm{{Pa}} \cdot \exp\left(\frac{{{a} \cdot {t}}}{{{b} + {t}}}\right)"
+def _dew_point_steps(out, T_air: float, T_value: Value, phi: Value, suffix: str,
+                     which: str, symbols: dict | None = None) -> tuple[Value, Value, float]:
+    """The saturation pressure and vapour pressure of moist air and its dew point (the inverse
+    of the same formula); return (p_v, dew point as an operand, dew point in K)."""
+    p_sat = _saturation_step(out, T_air, suffix, f"Saturation vapour pressure of the {which} "
+                             "air", given=T_value.given, symbols=symbols)
+    dew = float(dew_point_temperature(T_air, phi.si))
+    p_v = out.step("p_v", f"varphi_{suffix} * p_sat_{suffix}",
+                   {f"varphi_{suffix}": phi, f"p_sat_{suffix}": p_sat}, phi.si * p_sat.si, "Pa",
+                   label=f"Vapour pressure of the {which} air", source=SATURATION_PRESSURE_SOURCE,
+                   symbols=symbols)
+    over_water = p_v.si >= _P_SAT_0
+    a, b = _OVER_WATER if over_water else _OVER_ICE
+    dew_value = out.step(
+        "theta_dp", "theta_0 + b * log(p_v / p_0) / (a - log(p_v / p_0))",
+        {"theta_0": Value(zero_Celsius, "K", temperature=ABSOLUTE, given=True),
+         "b": Value(b, "K", temperature=DIFFERENCE, given=True), "p_v": p_v,
+         "p_0": Value(_P_SAT_0, "Pa", given=True), "a": Value(a, given=True)},
+        dew, "K", temperature=ABSOLUTE,
+        label=f"Dew point of the {which} air" + (" (inverse over water)" if over_water else
+                                                 " (frost point, inverse over ice)"),
+        source=SATURATION_PRESSURE_SOURCE, yields="dew_point")
+    return p_v, dew_value, dew
 
 
-# ----------------------------------------------------------------------------- the figure
+# ----------------------------------------------------------------------------- wall figure
 
 
-def pipe_figures(block) -> list[Figure]:
-    """The temperature through the insulation against radius, layers shaded and named."""
-    data = block.output.figure_data.get("radial")
-    if not data:
-        return []
-    from calcdoc.render.plots import figure, svg_of
-
-    sig = block.output.precision
-    with figure(block.key + "-radial", 160, 70) as (fig, ax):
-        for j, curve in enumerate(data["curves"]):
-            r = curve["r_mm"]
-            ax.axvspan(r[0], r[-1], facecolor="#ebebeb" if j % 2 else "#ffffff",
-                       edgecolor="#777777", hatch="//" if j % 2 else None, linewidth=0.6,
-                       zorder=0)
-            ax.text((r[0] + r[-1]) / 2, 0.5, curve["name"], transform=ax.get_xaxis_transform(),
-                    rotation=90, ha="center", va="center", fontsize=6.5,
-                    bbox={"facecolor": "white", "edgecolor": "none", "pad": 1.0}, zorder=3)
-            ax.plot(r, curve["t_degC"], color="#000000", linewidth=1.4, zorder=4,
-                    label="temperature through the insulation" if j == 0 else None)
-        ax.axhline(data["ambient_degC"], color="#000000", linestyle="--", linewidth=0.9,
-                   label="ambient " + format_quantity(data["ambient_degC"] + ZERO_CELSIUS, "K",
-                                                      "degC", sig))
-        ax.set_xlabel("radius from the pipe axis (mm), bore at "
-                      f"{format_number(data['bore_mm'], sig)} mm")
-        ax.set_ylabel("temperature (°C)")
-        ax.legend(loc="best")
-        svg = svg_of(fig)
-    return [Figure(block.key + "-radial", svg,
-                   "Temperature through the pipe insulation against radius (logarithmic within "
-                   "each layer, Fourier's law in a cylinder); the surface film lies between the "
-                   "outer surface and the ambient line.")]
-
-
-def wall_figures(block) -> list[Figure]:
-    """The temperature profile through the wall, drawn to scale, as an SVG figure."""
-    data = block.output.figure_data.get("profile")
-    if not data:
-        return []
-    from calcdoc.render.plots import figure, svg_of
-
-    sig = block.output.precision
-    thick = data["thicknesses_mm"]
-    total = sum(thick)
+def _wall_figure(out, inp, layers, temperatures, surface) -> FigureData:
+    """The temperature profile through the element, layers to scale, with the air on each side
+    (the surface films drawn not to scale), the surface for condensation and the dew point."""
     edges = [0.0]
-    for t in thick:
-        edges.append(edges[-1] + t)
+    for layer in inp.layers:
+        edges.append(edges[-1] + layer["thickness"])
+    total = edges[-1]
     film = 0.08 * total  # the air films are drawn outside the wall, not to scale
-    temps = data["temperatures_degC"]
-    t_i, t_e = data["inside_degC"], data["outside_degC"]
-
-    def deg(v):
-        return format_quantity(v + ZERO_CELSIUS, "K", "degC", sig)
-
-    with figure(block.key + "-profile", 160, 85) as (fig, ax):
-        for j, (x0, x1) in enumerate(zip(edges[:-1], edges[1:])):
-            bridge = data["bridges"][j]
-            hatch = "x" if bridge else ("//" if j % 2 else None)
-            ax.axvspan(x0, x1, facecolor="#ebebeb" if j % 2 else "#ffffff", edgecolor="#777777",
-                       hatch=hatch, linewidth=0.6, zorder=0)
-            ax.annotate(str(j + 1), xy=((x0 + x1) / 2, 1.0), xycoords=("data", "axes fraction"),
-                        xytext=(0, 2), textcoords="offset points", ha="center", va="bottom",
-                        fontsize=7)
-            if (x1 - x0) >= 0.045 * total:
-                name = data["names"][j]
-                if bridge:
-                    name += (f"\n+ {bridge['name']} "
-                             f"{format_quantity(bridge['fraction'], '1', '%', sig)}")
-                ax.text((x0 + x1) / 2, 0.5, name, transform=ax.get_xaxis_transform(),
-                        rotation=90, ha="center", va="center", fontsize=6.5,
-                        multialignment="center",
-                        bbox={"facecolor": "white", "edgecolor": "none", "pad": 1.0},
-                        zorder=3)
-        ax.plot(edges, temps, color="#000000", linestyle="-", marker="o", markersize=3,
-                linewidth=1.4, label="temperature through the wall (U-value surface resistances)",
-                zorder=4)
-        # Surface films: a short level line for each air temperature and a dotted drop to the
-        # surface, outside the wall's true-scale extent.
-        ax.plot([-film, -0.4 * film], [t_i, t_i], color="#000000", linewidth=1.4, zorder=4)
-        ax.plot([-0.4 * film, 0.0], [t_i, temps[0]], color="#000000", linestyle=":",
-                linewidth=1.2, zorder=4)
-        ax.plot([total + 0.4 * film, total + film], [t_e, t_e], color="#000000", linewidth=1.4,
-                zorder=4)
-        ax.plot([total, total + 0.4 * film], [temps[-1], t_e], color="#000000", linestyle=":",
-                linewidth=1.2, zorder=4, label="surface film (drawn not to scale)")
-        ax.annotate(f"inside air {deg(t_i)}", xy=(-film, t_i), xytext=(0, 4),
-                    textcoords="offset points", fontsize=7, ha="left", va="bottom")
-        ax.annotate(f"outside air {deg(t_e)}", xy=(total + film, t_e), xytext=(0, 4),
-                    textcoords="offset points", fontsize=7, ha="right", va="bottom")
-        if data["condensation_surface_degC"] is not None:
-            ax.plot([0.0], [data["condensation_surface_degC"]], linestyle="none", marker="v",
-                    markersize=5, markerfacecolor="white", markeredgecolor="#000000", zorder=5,
-                    label=f"inside surface for condensation (R_si = "
-                          f"{format_quantity(data['condensation_R_si'], 'm^2*K/W', None, sig)})")
-        if data["dew_point_degC"] is not None:
-            ax.axhline(data["dew_point_degC"], color="#000000", linestyle="--", linewidth=0.9,
-                       label=f"dew point of the inside air {deg(data['dew_point_degC'])}",
-                       zorder=4)
-        ax.set_xlim(-film, total + film)
-        values = temps + [t_i, t_e] + [v for v in (data["dew_point_degC"],
-                                                   data["condensation_surface_degC"])
-                                        if v is not None]
-        low, high = min(values), max(values)
-        pad = 0.12 * max(high - low, 1.0)
-        ax.set_ylim(low - pad, high + 1.5 * pad)
-        ticks = [0.0]
-        for e in edges[1:]:
-            if e - ticks[-1] >= 0.06 * total:
-                ticks.append(e)
-        if ticks[-1] != edges[-1]:
-            ticks[-1] = edges[-1]
-        ax.set_xticks(ticks)
-        ax.set_xticklabels([f"{t:.4g}" for t in ticks])
-        ax.set_xlabel("position from the inside surface [mm] (layers to scale)")
-        ax.set_ylabel("temperature [°C]")
-        ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22), ncol=2, fontsize=6.5)
-        ax.grid(False)
-        svg = svg_of(fig)
-    key = "; ".join(
-        f"{j + 1} {name} {t:.6g} mm"
-        + (f" with {b['name']} ({format_quantity(b['fraction'], '1', '%', sig)})" if b else "")
-        for j, (name, t, b) in enumerate(zip(data["names"], thick, data["bridges"])))
-    caption = (f"Temperature profile through {block.spec.title or block.key}, inside on the left. "
-               f"Layers: {key}.")
-    return [Figure(block.key + "-profile", svg, caption)]
+    theta_i, theta_e = inp.inside_temperature, inp.outside_temperature
+    bands = []
+    for k, (entry, x0, x1) in enumerate(zip(layers, edges[:-1], edges[1:])):
+        wide = (x1 - x0) >= 0.045 * total
+        label = entry["label"] + (f" + {entry['bridge']['name']}" if entry["bridge"] else "")
+        # Plain layers alternate white and grey (no hatching under the words); a bridged layer
+        # is cross-hatched, as it is not one material.
+        bands.append(Band(x0, x1, label if wide else "", 5 if entry["bridge"] else 2 * (k % 2)))
+    lines = [
+        Line(tuple(edges), tuple(temperatures), "temperature through the element", 0, True),
+        Line((-film, -0.4 * film, 0.0), (theta_i, theta_i, temperatures[0]),
+             "air and surface film on each side (film not to scale)", 3),
+        Line((total, total + 0.4 * film, total + film), (temperatures[-1], theta_e, theta_e),
+             "", 3),
+        Line((0.0,), (surface["theta"],), "inside surface with R_si,sc (for condensation)", 4,
+             True),
+    ]
+    marks = []
+    values = temperatures + [theta_i, theta_e, surface["theta"]]
+    if surface["dew_point"] is not None:
+        marks.append(Mark("y", surface["dew_point"], "dew point of the inside air", 1))
+        values.append(surface["dew_point"])
+    low, high = min(values), max(values)
+    pad = 0.12 * max(high - low, 1.0)
+    names, places = [], {}
+    for k, (entry, layer) in enumerate(zip(layers, inp.layers), start=1):
+        text = f"{{n{k}}} {{d{k}}}"
+        places[f"n{k}"] = Value(entry["label"])
+        places[f"d{k}"] = out.input(f"layers[{k - 1}].thickness")
+        if entry["bridge"] is not None:
+            text += f" with {{b{k}}} over {{f{k}}}"
+            places[f"b{k}"] = Value(entry["bridge"]["name"])
+            places[f"f{k}"] = entry["bridge"]["fraction"]
+        names.append(text)
+    places["ti"] = out.input("inside_temperature")
+    places["te"] = out.input("outside_temperature")
+    caption = ("Temperature profile through the element, inside on the left, inside air {ti}, "
+               "outside air {te}. Layers from the inside, to scale: " + "; ".join(names) + ".")
+    if surface["dew_point"] is not None:
+        places["dew"] = out.value_of("dew_point")
+        caption += " Dew point of the inside air {dew}."
+    return FigureData(
+        key=f"{out.block_key}-profile", caption=phrase(caption, **places),
+        x=Axis("position from the inside surface", "m", "mm", (-film, total + film)),
+        # room below the profile's lowest point for the legend
+        y=Axis("temperature", "K", "degC", (low - 3.0 * pad, high + 1.5 * pad)),
+        lines=tuple(lines), bands=tuple(bands), marks=tuple(marks),
+        # the profile falls from the warm side: the corner below its start is clear
+        legend="lower left" if theta_i >= theta_e else "upper left", size=(160.0, 85.0))
 
 
 # ----------------------------------------------------------------------------- cylindrical
 
 
+# The pipe's symbols as the textbooks write them: per-metre quantities primed, the ambient ∞.
+_PIPE_SYMBOLS = {"T_a": r"T_{\infty}", "R": "R'", "q": "q'", "R_i": "R'_{i}",
+                 "R_o": "R'_{o}", "Nu": r"\overline{Nu}_{D}", "Ra": "Ra_{D}",
+                 "theta_a": r"\theta_{\infty}", "p_sat_a": r"p_{sat,\infty}",
+                 "varphi_a": r"\varphi_{\infty}"}
+
+
 def _pipe_compute(inp, out):
-    D0 = inp.inner_diameter
-    thicknesses = [layer["thickness"] for layer in inp.layers]
-    conductivities, sources = [], []
-    for layer in inp.layers:
-        lam, material_source = _conductivity(layer)
-        conductivities.append(lam)
-        sources.append(layer["source"] or material_source)
     T_i, T_a = inp.inside_temperature, inp.ambient_temperature
     h_i = inp.inside_coefficient
+    thicknesses = [layer["thickness"] for layer in inp.layers]
+    conductivities, sources = [], []
+    for j, layer in enumerate(inp.layers):
+        k, material_source = _conductivity(out, layer, f"layers[{j}]")
+        conductivities.append(k)
+        sources.append(layer["source"] or material_source)
+    k_si = [k.si for k in conductivities]
 
-    convection = None
-    h_r = None
+    still = None
     if inp.surface_emissivity is not None:
-        try:
-            still = pipe_in_still_air(D0, thicknesses, conductivities, T_i, T_a,
-                                      inp.surface_emissivity, h_i)
-        except PhysicsRangeError as exc:
-            raise _pipe_range_error(exc, T_a) from None
-        flow, convection, h_r = still.flow, still.convection, still.h_radiation
+        still = pipe_in_still_air(inp.inner_diameter, thicknesses, k_si, T_i, T_a,
+                                  inp.surface_emissivity, h_i)
+        flow = still.flow
     else:
-        flow = cylindrical_layers(D0, thicknesses, conductivities, T_i, T_a,
+        flow = cylindrical_layers(inp.inner_diameter, thicknesses, k_si, T_i, T_a,
                                   inp.outside_coefficient, h_i)
+    symbols = dict(_PIPE_SYMBOLS)
+    T_i_value, T_a_value = out.input("inside_temperature"), out.input("ambient_temperature")
 
-    # Diameters and layer resistances.
-    diameters = [float(d) for d in flow.diameters]
-    terms_sym, terms_num = [], []
+    # Diameters and the resistance of each layer per metre.
+    resistances = {}
     if h_i is not None:
-        R_in = float(cylinder_film_resistance(D0, h_i))
-        out.step(r"R'_{i}", r"\frac{1}{h_{i} \pi D_{0}}",
-                 rf"\frac{{1}}{{{_given(h_i, 'W/(m^2*K)')} \cdot \pi \cdot {_given(D0, 'm')}}}",
-                 R_in, "m*K/W", label="Inside film resistance per metre", source=RADIAL_SOURCE)
-        terms_sym.append(r"R'_{i}")
-        terms_num.append(out.q(R_in, "m*K/W"))
+        D_0 = out.input("inner_diameter")
+        h_in = out.input("inside_coefficient")
+        resistances["R_i"] = out.step("R_i", "1 / (h_i * pi * D_0)", {"h_i": h_in, "D_0": D_0},
+                                      float(cylinder_film_resistance(D_0.si, h_in.si)), "m*K/W",
+                                      label="Inside film resistance per metre",
+                                      source=RADIAL_SOURCE, symbols=symbols)
     else:
         out.note("No inside coefficient given: the inner surface is taken at the inside "
                  "temperature (the inside film resistance is neglected).")
-    for j, (layer, t, lam, source) in enumerate(zip(inp.layers, thicknesses, conductivities,
-                                                     sources), start=1):
-        label = f"Layer {j}, {_layer_label(layer, j)}"
-        D_prev, D_j = diameters[j - 1], diameters[j]
-        prev = _given(D_prev, "m") if j == 1 else out.q(D_prev, "m")
-        out.step(f"D_{{{j}}}", rf"D_{{{j - 1}}} + 2 t_{{{j}}}",
-                 rf"{prev} + 2 \cdot {_given(t, 'm')}", D_j, "m",
-                 label=f"{label}, outer diameter", display_unit="mm")
-        R_j = float(cylinder_layer_resistance(D_prev, D_j, lam))
-        out.step(f"R'_{{{j}}}", rf"\frac{{\ln(D_{{{j}}}/D_{{{j - 1}}})}}{{2 \pi k_{{{j}}}}}",
-                 rf"\frac{{\ln({out.q(D_j, 'm')}/{out.q(D_prev, 'm')})}}"
-                 rf"{{2 \pi \cdot {_given(lam, 'W/(m*K)')}}}", R_j, "m*K/W",
-                 label=f"{label}, resistance per metre", source=source or RADIAL_SOURCE)
-        terms_sym.append(f"R'_{{{j}}}")
-        terms_num.append(out.q(R_j, "m*K/W"))
-    D_n = flow.outer_diameter
-    out.result("outer_diameter", D_n)
+    previous = out.input("inner_diameter")
+    diameters = [previous]
+    for j, (layer, k, source) in enumerate(zip(inp.layers, conductivities, sources), start=1):
+        name = _layer_name(layer, j)
+        D_j = out.step(f"D_{j}", f"D_{j - 1} + 2 * t_{j}",
+                       {f"D_{j - 1}": previous, f"t_{j}": out.input(f"layers[{j - 1}].thickness")},
+                       float(flow.diameters[j]), "m", display="mm", label=_layer_label(j, name),
+                       group=GROUP_DIAMETERS, item=name,
+                       yields="outer_diameter" if j == len(inp.layers) else None)
+        symbols[f"R_{j}"] = f"R'_{{{j}}}"
+        resistances[f"R_{j}"] = out.step(
+            f"R_{j}", f"log(D_{j} / D_{j - 1}) / (2 * pi * k_{j})",
+            {f"D_{j}": D_j, f"D_{j - 1}": previous, f"k_{j}": k},
+            float(cylinder_layer_resistance(previous.si, D_j.si, k.si)), "m*K/W",
+            label=_layer_label(j, name), source=source or RADIAL_SOURCE,
+            group=GROUP_PIPE_LAYERS, item=name, symbols=symbols)
+        previous = D_j
+        diameters.append(D_j)
+    D_n, n = diameters[-1], len(inp.layers)
 
-    theta_s = flow.theta_surface
-    if convection is not None:
-        _still_air_steps(out, inp, convection, h_r, theta_s, T_a, D_n)
-    h_o = flow.h_outside
-    R_out = float(cylinder_film_resistance(D_n, h_o))
-    h_shown = (out.q(h_o, "W/(m^2*K)") if convection is not None
-               else _given(h_o, "W/(m^2*K)"))
-    out.step(r"R'_{o}", r"\frac{1}{h_{o} \pi D_{n}}",
-             rf"\frac{{1}}{{{h_shown} \cdot \pi \cdot {out.q(D_n, 'm')}}}",
-             R_out, "m*K/W", label="Outside surface resistance per metre", source=RADIAL_SOURCE)
-    terms_sym.append(r"R'_{o}")
-    terms_num.append(out.q(R_out, "m*K/W"))
-    out.result("h_outside", h_o)
+    if still is not None:
+        h_o = _still_air_steps(out, inp, still, D_n, n, T_a_value, symbols)
+    else:
+        h_o = out.input("outside_coefficient")
+        out.result("h_outside", h_o.si)
+    resistances["R_o"] = R_o = out.step(
+        "R_o", f"1 / (h_o * pi * D_{n})", {"h_o": h_o, f"D_{n}": D_n},
+        float(cylinder_film_resistance(D_n.si, flow.h_outside)), "m*K/W",
+        label="Outside surface resistance per metre", source=RADIAL_SOURCE, symbols=symbols)
 
-    R = flow.R_per_length
-    out.step("R'", " + ".join(terms_sym), " + ".join(terms_num), R, "m*K/W",
-             label="Total resistance per metre, inside temperature to ambient",
-             source=RADIAL_SOURCE)
-    out.result("R_per_length", R)
-    q = flow.q_per_length
-    ti, ta = _given(T_i, "K", "degC"), _given(T_a, "K", "degC")
-    out.step("q'", r"\frac{T_{i} - T_{\infty}}{R'}",
-             rf"\frac{{{ti} - {_p(ta, _celsius(T_a))}}}{{{out.q(R, 'm*K/W')}}}", q, "W/m",
-             label="Heat flow per metre, positive outward", source=RADIAL_SOURCE)
-    out.result("q_per_length", q)
-    Q = q * inp.length
-    out.step("Q", "q' L", rf"{_p(out.q(q, 'W/m'), q)} \cdot {_given(inp.length, 'm')}", Q, "W",
-             label="Heat flow over the length")
-    out.result("Q", Q)
-    out.step(r"\theta_{s}", r"T_{\infty} + q' R'_{o}",
-             rf"{_p(ta, _celsius(T_a))} + {_p(out.q(q, 'W/m'), q)} \cdot {out.q(R_out, 'm*K/W')}",
-             theta_s, "K", label="Outer surface temperature", display_unit="degC",
-             source=RADIAL_SOURCE)
-    out.result("theta_surface", theta_s)
-    # Plain data for the radial profile figure: within layer j the temperature falls with
-    # ln(r) (Fourier's law in a cylinder), T(r) = T_{j-1} − q' ln(r/r_{j-1}) / (2π k_j).
-    curves = []
-    temps = [float(t) for t in flow.interface_temperatures]
-    for j, lam in enumerate(conductivities, start=1):
-        r = np.geomspace(diameters[j - 1] / 2, diameters[j] / 2, 24)
-        curves.append({"r_mm": (1000 * r).tolist(),
-                       "t_degC": (temps[j - 1] - q * np.log(r / r[0]) / (2 * math.pi * lam)
-                                  - ZERO_CELSIUS).tolist(),
-                       "name": _layer_label(inp.layers[j - 1], j)})
-    out.figure_data["radial"] = {"curves": curves, "inside_degC": T_i - ZERO_CELSIUS,
-                                 "ambient_degC": T_a - ZERO_CELSIUS,
-                                 "bore_mm": 500 * diameters[0], "outer_mm": 500 * diameters[-1]}
-    if q < 0:
+    R = out.step("R", " + ".join(resistances), resistances, flow.R_per_length,
+                 label="Total resistance per metre, inside temperature to ambient",
+                 source=RADIAL_SOURCE, yields="R_per_length", symbols=symbols)
+    q = out.step("q", "(T_i - T_a) / R", {"T_i": T_i_value, "T_a": T_a_value, "R": R},
+                 flow.q_per_length, label="Heat flow per metre, positive outward",
+                 source=RADIAL_SOURCE, yields="q_per_length", symbols=symbols)
+    out.step("Q", "q * L", {"q": q, "L": out.input("length")}, flow.q_per_length * inp.length,
+             label="Heat flow over the length", yields="Q", symbols=symbols)
+    theta_s = out.step("theta_s", "T_a + q * R_o", {"T_a": T_a_value, "q": q, "R_o": R_o},
+                       T_a + flow.q_per_length * R_o.si, label="Outer surface temperature",
+                       source=RADIAL_SOURCE, yields="theta_surface", symbols=symbols)
+    if flow.q_per_length < 0:
         out.note("The heat flow is negative: the pipe gains heat from the ambient.")
 
-    phi = inp.ambient_relative_humidity
-    if phi is not None:
-        p_v, dew = _dew_point_steps(out, T_a, phi, r"\theta_{\infty}", r"\varphi_{\infty}",
-                                    "ambient",
-                                    ("ambient_temperature", "ambient_relative_humidity"))
-        margin = theta_s - dew
-        out.step(r"\Delta\theta_{c}", r"\theta_{s} - \theta_{dp}",
-                 rf"{out.q(theta_s, 'K', 'degC')} - {_p(out.q(dew, 'K', 'degC'), _celsius(dew))}",
-                 margin, "K", label="Condensation margin at the outer surface",
-                 source=SATURATION_PRESSURE_SOURCE)
-        out.result("dew_point", dew)
-        out.result("condensation_margin", margin)
-        if margin < 0:
-            out.warn(f"The outer surface ({out.qt(theta_s, 'K', 'degC')}) is below the dew point "
-                     f"of the ambient air ({out.qt(dew, 'K', 'degC')}): condensation on the "
-                     "insulation is expected.", SATURATION_PRESSURE_SOURCE)
+    dew = None
+    if inp.ambient_relative_humidity is not None:
+        _, dew_value, dew = _dew_point_steps(out, T_a, T_a_value,
+                                             out.input("ambient_relative_humidity"), "a",
+                                             "ambient", symbols)
+        margin = out.step("Delta_theta", "theta_s - theta_dp",
+                          {"theta_s": theta_s, "theta_dp": dew_value}, theta_s.si - dew, "K",
+                          temperature=DIFFERENCE, label="Condensation margin at the outer surface",
+                          source=SATURATION_PRESSURE_SOURCE, yields="condensation_margin",
+                          symbols={"Delta_theta": r"\Delta\theta_{c}"})
+        if margin.si < 0:
+            out.warn("The outer surface ({surface}) is below the dew point of the ambient air "
+                     "({dew}): condensation on the insulation is expected.",
+                     SATURATION_PRESSURE_SOURCE, surface=theta_s, dew=dew_value)
+    out.figure(_pipe_figure(out, inp, flow, k_si, dew))
 
 
-def _pipe_range_error(exc: PhysicsRangeError, T_a: float) -> PhysicsRangeError:
-    if exc.quantity == "Ra_D":
-        return PhysicsRangeError(
-            "surface_emissivity", f"Ra_D = {format_number(exc.value, 3)}",
-            f"{exc.expected}; give outside_coefficient instead")
-    if exc.quantity == "air temperature":
-        low, high = 200.0, 800.0
-        target = "ambient_temperature" if not low <= T_a <= high else "inside_temperature"
-        return PhysicsRangeError(target, f"film temperature {exc.value:.5g} K", exc.expected)
-    return exc
-
-
-def _still_air_steps(out, inp, convection, h_r, theta_s, T_a, D_n):
-    air = convection.air
+def _still_air_steps(out, inp, still, D_n: Value, n: int, T_a: Value, symbols: dict) -> Value:
+    """The outside coefficient of a horizontal pipe in still air: the surface temperature by
+    iteration (a statement), then the film temperature, the air's properties, Ra, Nu
+    (Churchill–Chu), h_c, h_r and their sum, each written out at the solved surface
+    temperature."""
+    convection, T_s_si = still.convection, still.flow.theta_surface
+    D = f"D_{n}"
     out.note("Outside coefficient: natural convection from a long horizontal cylinder in still "
-             "air (Churchill–Chu) plus radiation to surroundings at the ambient temperature; the "
-             "surface temperature is found by iteration (Brent's method) so that the heat "
-             "conducted through the layers equals the heat leaving the surface.",
+             "air (Churchill–Chu) plus radiation to surroundings at the ambient temperature.",
              CHURCHILL_CHU_SOURCE)
-    out.note(f"Air at the film temperature {out.qt(convection.film_temperature, 'K', 'degC')}: "
-             f"k = {out.qt(air.conductivity, 'W/(m*K)')}, "
-             f"ν = {out.qt(air.kinematic_viscosity, 'm^2/s')}, "
-             f"α = {out.qt(air.thermal_diffusivity, 'm^2/s')}, Pr = {out.qt(air.prandtl, '1')}, "
-             f"β = 1/T_f.", AIR_TABLE_SOURCE)
-    out.step("T_{f}", r"\frac{T_{s} + T_{\infty}}{2}",
-             rf"\frac{{{out.q(theta_s, 'K')} + {_given(T_a, 'K')}}}{{2}}",
-             convection.film_temperature, "K", label="Film temperature (at the solved surface "
-             "temperature " + out.qt(theta_s, "K", "degC") + ")", source=CHURCHILL_CHU_SOURCE)
-    out.step("Ra_{D}", r"\frac{g \beta |T_{s} - T_{\infty}| D_{n}^{3}}{\nu \alpha}",
-             rf"\frac{{9.807\,\mathrm{{m/s^{{2}}}} \cdot "
-             rf"\frac{{1}}{{{out.q(convection.film_temperature, 'K')}}} \cdot "
-             rf"{out.q(abs(theta_s - T_a), 'K')} \cdot ({out.q(D_n, 'm')})^{{3}}}}"
-             rf"{{{out.q(air.kinematic_viscosity, 'm^2/s')} \cdot "
-             rf"{out.q(air.thermal_diffusivity, 'm^2/s')}}}",
-             convection.rayleigh, "1", label="Rayleigh number (valid up to 10^12)",
-             source=CHURCHILL_CHU_SOURCE)
-    out.step(r"\overline{Nu}_{D}",
-             r"\left\{0.60 + \frac{0.387\, Ra_{D}^{1/6}}{\left[1 + (0.559/Pr)^{9/16}"
-             r"\right]^{8/27}}\right\}^{2}",
-             rf"\left\{{0.60 + \frac{{0.387 \cdot ({out.q(convection.rayleigh, '1')})^{{1/6}}}}"
-             rf"{{\left[1 + (0.559/{out.q(air.prandtl, '1')})^{{9/16}}\right]^{{8/27}}}}"
-             r"\right\}^{2}",
-             convection.nusselt, "1", label="Nusselt number, Churchill–Chu",
-             source=CHURCHILL_CHU_SOURCE)
-    out.step("h_{c}", r"\frac{\overline{Nu}_{D}\, k}{D_{n}}",
-             rf"\frac{{{out.q(convection.nusselt, '1')} \cdot "
-             rf"{out.q(air.conductivity, 'W/(m*K)')}}}{{{out.q(D_n, 'm')}}}",
-             convection.h, "W/(m^2*K)", label="Natural convection coefficient",
-             source=CHURCHILL_CHU_SOURCE)
-    out.step("h_{r}", r"\varepsilon \sigma (T_{s}^{2} + T_{\infty}^{2})(T_{s} + T_{\infty})",
-             rf"{_given(inp.surface_emissivity, '1')} \cdot \sigma \cdot "
-             rf"\left(({out.q(theta_s, 'K')})^{{2}} + ({_given(T_a, 'K')})^{{2}}\right)"
-             rf"\left({out.q(theta_s, 'K')} + {_given(T_a, 'K')}\right)",
-             h_r, "W/(m^2*K)", label="Radiation coefficient to the surroundings",
-             source=STEFAN_BOLTZMANN_SOURCE)
-    out.step("h_{o}", "h_{c} + h_{r}",
-             rf"{out.q(convection.h, 'W/(m^2*K)')} + {out.q(h_r, 'W/(m^2*K)')}",
-             convection.h + h_r, "W/(m^2*K)", label="Outside surface coefficient")
+    T_s = out.statement(
+        "T_s", "the outer surface temperature at which the heat conducted through the layers "
+        "equals the heat leaving the surface by convection and radiation (h_o = h_c + h_r "
+        "below, each evaluated at T_s), found by iteration between the ambient temperature "
+        "{T_a} and the inside temperature {T_i} to within {tol}",
+        T_s_si, "K", temperature=ABSOLUTE,
+        values={"T_a": T_a, "T_i": out.input("inside_temperature"),
+                "tol": Value(_BRENT_TOLERANCE, "K", temperature=DIFFERENCE, given=True)},
+        label="Outer surface temperature (iteration)", source=BRENT_SOURCE, symbols=symbols)
+    # The film temperature and the table rows are shown in K, as the table is written.
+    T_f = out.step("T_f", "(T_s + T_a) / 2", {"T_s": T_s, "T_a": T_a},
+                   convection.film_temperature, "K", temperature=ABSOLUTE, display="K",
+                   label="Film temperature", source=CHURCHILL_CHU_SOURCE, symbols=symbols)
+    lower, upper = air_table_interval(convection.film_temperature)
+    air = convection.air
+    row_T = {"T_lo": Value(lower.temperature, "K", "K", ABSOLUTE, given=True),
+             "T_hi": Value(upper.temperature, "K", "K", ABSOLUTE, given=True), "T_f": T_f}
+    properties = {}
+    for name, field, unit, item in (("k_air", "conductivity", "W/(m*K)", "conductivity"),
+                                    ("nu", "kinematic_viscosity", "m^2/s", "kinematic viscosity"),
+                                    ("alpha", "thermal_diffusivity", "m^2/s",
+                                     "thermal diffusivity"),
+                                    ("Pr", "prandtl", "1", "Prandtl number")):
+        lo, hi = f"{name}_lo", f"{name}_hi"
+        properties[name] = out.step(
+            name, f"{lo} + ({hi} - {lo}) * (T_f - T_lo) / (T_hi - T_lo)",
+            {lo: Value(getattr(lower, field), unit, given=True),
+             hi: Value(getattr(upper, field), unit, given=True), **row_T},
+            getattr(air, field), unit, label="Air at the film temperature, " + item,
+            source=AIR_TABLE_SOURCE, group=GROUP_AIR, item=item)
+    Ra = out.step("Ra", f"g * (1 / T_f) * abs(T_s - T_a) * {D} ** 3 / (nu * alpha)",
+                  {"g": Value(STANDARD_GRAVITY, "m/s^2", given=True), "T_f": T_f, "T_s": T_s,
+                   "T_a": T_a, D: D_n, "nu": properties["nu"],
+                   "alpha": properties["alpha"]},
+                  convection.rayleigh,
+                  label="Rayleigh number on the outer diameter, β = 1/T_f (ideal gas); "
+                        "Churchill–Chu holds up to 10¹²",
+                  source=CHURCHILL_CHU_SOURCE, symbols=symbols)
+    Nu = out.step("Nu", "(0.6 + 0.387 * Ra ** (1 / 6) / (1 + (0.559 / Pr) ** (9 / 16)) ** "
+                        "(8 / 27)) ** 2", {"Ra": Ra, "Pr": properties["Pr"]},
+                  convection.nusselt, label="Mean Nusselt number, Churchill–Chu",
+                  source=CHURCHILL_CHU_SOURCE, symbols=symbols)
+    h_c = out.step("h_c", f"Nu * k_air / {D}", {"Nu": Nu, "k_air": properties["k_air"], D: D_n},
+                   convection.h, "W/(m^2*K)", label="Natural convection coefficient",
+                   source=CHURCHILL_CHU_SOURCE, symbols=symbols)
+    h_r = out.step("h_r", "varepsilon * sigma * (T_s ** 2 + T_a ** 2) * (T_s + T_a)",
+                   {"varepsilon": out.input("surface_emissivity"), "T_s": T_s, "T_a": T_a},
+                   still.h_radiation, "W/(m^2*K)",
+                   label="Radiation coefficient to surroundings at the ambient temperature",
+                   source=STEFAN_BOLTZMANN_SOURCE, symbols=symbols)
+    return out.step("h_o", "h_c + h_r", {"h_c": h_c, "h_r": h_r}, still.flow.h_outside,
+                    label="Outside surface coefficient", yields="h_outside")
+
+
+def _pipe_figure(out, inp, flow, conductivities, dew) -> FigureData:
+    """The temperature through the layers against radius: within layer j it falls with ln r
+    (Fourier's law in a cylinder), T(r) = T_(j-1) − q' ln(r/r_(j-1)) / (2π k_j)."""
+    radii = [float(d) / 2 for d in flow.diameters]
+    temperatures = [float(t) for t in flow.interface_temperatures]
+    q = flow.q_per_length
+    span = radii[-1] - radii[0]
+    bands, xs, ys = [], [], []
+    for j, (layer, k) in enumerate(zip(inp.layers, conductivities), start=1):
+        r = np.geomspace(radii[j - 1], radii[j], 24)
+        xs.extend(r.tolist())
+        ys.extend((temperatures[j - 1] - q * np.log(r / r[0]) / (2 * math.pi * k)).tolist())
+        wide = radii[j] - radii[j - 1] >= 0.08 * span
+        bands.append(Band(radii[j - 1], radii[j], _layer_name(layer, j) if wide else "",
+                          2 * (j % 2)))
+    marks = [Mark("y", inp.ambient_temperature, "ambient air", 1),
+             Mark("y", inp.inside_temperature, "fluid inside", 3)]
+    places = {"r0": Value(radii[0], "m", "mm"), "rn": Value(radii[-1], "m", "mm"),
+              "ts": out.value_of("theta_surface"), "ta": out.input("ambient_temperature")}
+    caption = ("Temperature through the pipe's layers against the radius from its axis (bore "
+               "radius {r0}, outer radius {rn}), logarithmic within each layer (Fourier's law in "
+               "a cylinder); the surface film lies between the outer surface at {ts} and the "
+               "ambient air at {ta}.")
+    if dew is not None:
+        marks.append(Mark("y", dew, "dew point of the ambient air", 2))
+        places["dew"] = out.value_of("dew_point")
+        caption += " Dew point of the ambient air {dew}."
+    return FigureData(
+        key=f"{out.block_key}-radial", caption=phrase(caption, **places),
+        x=Axis("radius from the pipe axis", "m", "mm"), y=Axis("temperature", "K", "degC"),
+        lines=(Line(tuple(xs), tuple(ys)),), bands=tuple(bands), marks=tuple(marks),
+        legend=None, size=(160.0, 70.0))
 
 
 # ----------------------------------------------------------------------------- kinds
@@ -963,16 +956,27 @@ LAYERED_WALL = Kind(
                    temperature=ABSOLUTE, list=True),
         ResultSpec("R_upper", "m^2*K/W", "upper limit R'_T of the combined method"),
         ResultSpec("R_lower", "m^2*K/W", "lower limit R''_T of the combined method"),
-        ResultSpec("f_Rsi", "1", "temperature factor at the inside surface (R_si,c)"),
+        ResultSpec("f_Rsi", "1", "temperature factor at the inside surface (R_si,sc)"),
         ResultSpec("dew_point", "K", "dew point of the inside air", temperature=ABSOLUTE),
         ResultSpec("condensation_margin", "K",
-                   "inside surface temperature (R_si,c) minus dew point", temperature=DIFFERENCE),
+                   "inside surface temperature (R_si,sc) minus dew point",
+                   temperature=DIFFERENCE),
         ResultSpec("surface_relative_humidity", "1",
-                   "relative humidity at the inside surface (R_si,c)", display="%"),
+                   "relative humidity at the inside surface (R_si,sc)", display="%"),
     ),
     compute=_wall_compute,
-    figures=wall_figures,
     caution=WALL_CAUTION,
+    # Physics parameter names → inputs. layer_resistances is refused only by the combined
+    # method's R'_T/R''_T limit, for the bridged layer it names; the saturation pressure is
+    # taken first at the inside air (temperature, air_temperature, relative_humidity), then at
+    # the inside surface, which leaves the range only through the outside temperature.
+    input_names={"layer_resistances": "layers[{index}].bridge",
+                 "temperature": "inside_temperature",
+                 "air_temperature": "inside_temperature",
+                 "relative_humidity": "inside_relative_humidity",
+                 "surface_temperature": "outside_temperature",
+                 "R_si": "inside_surface_resistance",
+                 "R_se": "outside_surface_resistance"},
     references=("ISO 6946:2017", "ISO 13788:2012"),
 )
 
@@ -1015,9 +1019,17 @@ CYLINDRICAL_LAYERS = Kind(
                    temperature=DIFFERENCE),
     ),
     compute=_pipe_compute,
-    figures=pipe_figures,
     exactly_one=(("outside_coefficient", "surface_emissivity"),),
     caution=PIPE_CAUTION,
+    # Physics parameter names → inputs (inner_diameter, inside_temperature,
+    # ambient_temperature, inside_coefficient and outside_coefficient are named alike).
+    # emissivity: the still-air coefficient it asks for is outside Churchill–Chu's Ra_D range.
+    input_names={"thicknesses": "layers[{index}].thickness",
+                 "conductivities": "layers[{index}].conductivity",
+                 "emissivity": "surface_emissivity",
+                 "temperature": "ambient_temperature",
+                 "air_temperature": "ambient_temperature",
+                 "relative_humidity": "ambient_relative_humidity"},
     references=("Churchill and Chu (1975)",),
 )
 

@@ -22,7 +22,8 @@ from numpy.typing import ArrayLike
 
 from calcdoc.physics import PhysicsRangeError
 
-__all__ = ["AIR_TABLE_SOURCE", "AIR_TABLE_RANGE", "AirProperties", "air_properties"]
+__all__ = ["AIR_TABLE_SOURCE", "AIR_TABLE_RANGE", "AirProperties", "air_properties",
+           "air_table_interval"]
 
 AIR_TABLE_SOURCE = (
     "Bergman, Lavine, Incropera, DeWitt, Fundamentals of Heat and Mass Transfer, 7th ed. "
@@ -112,10 +113,60 @@ def air_properties(temperature: ArrayLike) -> AirProperties:
     if np.any(bad):
         found = float(T[bad].flat[0]) if T.ndim else float(T)
         raise PhysicsRangeError(
-            "air temperature", found,
+            "temperature", found,
             f"{_T[0]:g} K to {_T[-1]:g} K, the rows of the air table ({AIR_TABLE_SOURCE})")
     values = [np.interp(T, _T, column) for column in (_K, _NU, _ALPHA, _PR)]
     values.append(1.0 / T)
     if T.ndim == 0:
         return AirProperties(float(T), *(float(v) for v in values))
     return AirProperties(T, *values)
+
+
+def air_table_interval(temperature: float) -> tuple[AirProperties, AirProperties]:
+    r"""Return the two rows of the air table between which a temperature lies, for writing out
+    the linear interpolation that :func:`air_properties` performs.
+
+    .. math::
+        T_i \le T \le T_{i+1}, \qquad
+        \phi(T) = \phi_i + (\phi_{i+1} - \phi_i)\,\frac{T - T_i}{T_{i+1} - T_i}
+
+    Parameters
+    ----------
+    temperature : float
+        Air temperature *T* [K].
+
+    Returns
+    -------
+    (lower, upper) : tuple of AirProperties
+        The rows at T_i and T_{i+1} [SI, as :func:`air_properties`]; at a row's own temperature
+        the interval that starts there (the last interval at the table's upper end).
+
+    Notes
+    -----
+    Valid from 200 K to 800 K, the rows held; outside that a PhysicsRangeError is raised.
+    Interpolating between the two rows reproduces :func:`air_properties` to rounding.
+
+    Examples
+    --------
+    >>> lower, upper = air_table_interval(367.0)
+    >>> lower.temperature, upper.temperature
+    (350.0, 400.0)
+
+    References
+    ----------
+    1. Bergman, T. L., Lavine, A. S., Incropera, F. P., DeWitt, D. P. Fundamentals of Heat and
+       Mass Transfer, 7th ed. Wiley, 2011. Table A.4 (air). Values recalled from memory (see
+       :func:`air_properties`).
+    """
+    T = float(temperature)
+    if not (np.isfinite(T) and _T[0] <= T <= _T[-1]):
+        raise PhysicsRangeError(
+            "temperature", T,
+            f"{_T[0]:g} K to {_T[-1]:g} K, the rows of the air table ({AIR_TABLE_SOURCE})")
+    i = min(int(np.searchsorted(_T, T, side="right")) - 1, len(_T) - 2)
+
+    def row(j: int) -> AirProperties:
+        return AirProperties(float(_T[j]), float(_K[j]), float(_NU[j]), float(_ALPHA[j]),
+                             float(_PR[j]), 1.0 / float(_T[j]))
+
+    return row(i), row(i + 1)

@@ -20,7 +20,7 @@ from scipy import constants
 from scipy.optimize import brentq
 
 from calcdoc.physics import PhysicsRangeError
-from calcdoc.physics.air import AirProperties, air_properties
+from calcdoc.physics.air import AIR_TABLE_RANGE, AIR_TABLE_SOURCE, AirProperties, air_properties
 
 __all__ = [
     "SURFACE_RESISTANCE_SOURCE",
@@ -55,12 +55,15 @@ ZERO_CELSIUS = constants.zero_Celsius  # 273.15 K
 
 def _checked(quantity: str, value: ArrayLike, ok: Callable[[np.ndarray], np.ndarray],
              expected: str) -> np.ndarray:
-    """The value as a float array, refused unless every element is finite and ``ok``."""
+    """The value as a float array, refused unless every element is finite and ``ok``; for a
+    list argument the error gives the index (along the first axis) of the first bad element."""
     array = np.asarray(value, dtype=float)
     bad = ~(np.isfinite(array) & ok(array))
     if np.any(bad):
-        found = float(array[bad].flat[0]) if array.ndim else float(array)
-        raise PhysicsRangeError(quantity, found, expected)
+        if array.ndim:
+            first = tuple(int(i) for i in np.argwhere(bad)[0])
+            raise PhysicsRangeError(quantity, float(array[first]), expected, index=first[0])
+        raise PhysicsRangeError(quantity, float(array), expected)
     return array
 
 
@@ -240,11 +243,11 @@ def plane_element(layer_resistances: ArrayLike, inside_temperature: float,
     ----------
     1. ISO 6946:2017, 6.7.1, total thermal resistance of homogeneous layers (from memory).
     """
-    R = _positive("layer resistance", np.atleast_1d(layer_resistances), "m^2*K/W")
-    theta_i = float(_positive("inside temperature", inside_temperature, "K"))
-    theta_e = float(_positive("outside temperature", outside_temperature, "K"))
-    r_si = float(_non_negative("inside surface resistance", R_si, "m^2*K/W"))
-    r_se = float(_non_negative("outside surface resistance", R_se, "m^2*K/W"))
+    R = _positive("layer_resistances", np.atleast_1d(layer_resistances), "m^2*K/W")
+    theta_i = float(_positive("inside_temperature", inside_temperature, "K"))
+    theta_e = float(_positive("outside_temperature", outside_temperature, "K"))
+    r_si = float(_non_negative("R_si", R_si, "m^2*K/W"))
+    r_se = float(_non_negative("R_se", R_se, "m^2*K/W"))
     R_total = r_si + float(R.sum()) + r_se
     q = (theta_i - theta_e) / R_total
     cumulative = r_si + np.concatenate(([0.0], np.cumsum(R)))
@@ -304,7 +307,9 @@ def combined_method(layer_resistances: Sequence[ArrayLike], fractions: ArrayLike
     layer is entered as its resistance R_g. The method is refused (PhysicsRangeError) when
     R'_T/R''_T > 1.5 (e > 20 %), where ISO 6946:2017 6.7.2.1 says it does not apply (from
     memory); insulation bridged by metal is outside its scope and needs a numerical
-    calculation to ISO 10211.
+    calculation to ISO 10211. The error names ``layer_resistances`` with the index of the most
+    inhomogeneous layer (the largest ratio of the area-weighted arithmetic to harmonic mean of
+    its section resistances), the bridge a reader would change first.
 
     The layer temperatures of a bridged element are not defined by the standard. By the
     convention used here, ``layer_resistances`` are the lower-limit layer resistances R_j
@@ -323,15 +328,16 @@ def combined_method(layer_resistances: Sequence[ArrayLike], fractions: ArrayLike
        thermal transmittance — Calculation methods. 6.7.2, combined method (subclause numbers
        from memory).
     """
-    f = _checked("section fraction", np.atleast_1d(fractions),
+    f = _checked("fractions", np.atleast_1d(fractions),
                  lambda a: (a > 0.0) & (a <= 1.0), "0 < f <= 1")
     if f.ndim != 1:
         raise ValueError(f"fractions must be one-dimensional, got shape {f.shape}")
     if abs(float(f.sum()) - 1.0) > 1e-6:
-        raise PhysicsRangeError("sum of section fractions", float(f.sum()),
-                                "1: the sections make up the whole area (ISO 6946:2017 6.7.2)")
+        raise PhysicsRangeError("fractions", float(f.sum()),
+                                "fractions summing to 1: the sections make up the whole area "
+                                "(ISO 6946:2017 6.7.2)")
     if len(layer_resistances) == 0:
-        raise PhysicsRangeError("number of layers", 0, "at least 1")
+        raise PhysicsRangeError("layer_resistances", 0, "at least one layer")
     rows = []
     for index, layer in enumerate(layer_resistances):
         row = np.asarray(layer, dtype=float)
@@ -339,19 +345,23 @@ def combined_method(layer_resistances: Sequence[ArrayLike], fractions: ArrayLike
             raise ValueError(f"layer {index + 1}: expected one resistance or {f.shape[0]} "
                              f"(one per section), got shape {row.shape}")
         rows.append(np.broadcast_to(row, f.shape))
-    R = _positive("layer resistance", np.vstack(rows), "m^2*K/W")  # shape (layers, sections)
-    r_si = float(_non_negative("inside surface resistance", R_si, "m^2*K/W"))
-    r_se = float(_non_negative("outside surface resistance", R_se, "m^2*K/W"))
+    R = _positive("layer_resistances", np.vstack(rows), "m^2*K/W")  # shape (layers, sections)
+    r_si = float(_non_negative("R_si", R_si, "m^2*K/W"))
+    r_se = float(_non_negative("R_se", R_se, "m^2*K/W"))
 
     R_sections = r_si + R.sum(axis=0) + r_se
     R_upper = 1.0 / float(np.sum(f / R_sections))
     R_layers = 1.0 / np.sum(f / R, axis=1)
     R_lower = r_si + float(R_layers.sum()) + r_se
     if R_upper / R_lower > _COMBINED_METHOD_MAX_RATIO:
+        # The layer to blame is the most inhomogeneous one: the largest ratio of its
+        # area-weighted arithmetic to harmonic mean resistance (its own "upper over lower").
+        spread = (R @ f) * np.sum(f / R, axis=1)
         raise PhysicsRangeError(
-            "R_upper/R_lower", R_upper / R_lower,
-            f"<= {_COMBINED_METHOD_MAX_RATIO} for the combined method (ISO 6946:2017 6.7.2.1); "
-            "use a numerical calculation to ISO 10211")
+            "layer_resistances", R_upper / R_lower,
+            f"R'_T/R''_T <= {_COMBINED_METHOD_MAX_RATIO} for the combined method (ISO 6946:2017 "
+            "6.7.2); a bridge this conductive needs a numerical calculation to ISO 10211",
+            index=int(np.argmax(spread)))
     R_total = 0.5 * (R_upper + R_lower)
     relative_error = (R_upper - R_lower) / (2.0 * R_total)
     scale = (R_total - r_si - r_se) / float(R_layers.sum())
@@ -421,9 +431,7 @@ def saturation_vapour_pressure(temperature: ArrayLike) -> float | np.ndarray:
        elements — Internal surface temperature to avoid critical surface humidity and
        interstitial condensation — Calculation methods. Annex E (from memory).
     """
-    T = _checked("temperature", temperature,
-                 lambda t: (t >= _SATURATION_T_MIN) & (t <= _SATURATION_T_MAX),
-                 _SATURATION_RANGE_TEXT)
+    T = _saturation_range("temperature", temperature)
     return _result(_magnus(T - ZERO_CELSIUS))
 
 
@@ -461,7 +469,7 @@ def saturation_temperature(vapour_pressure: ArrayLike) -> float | np.ndarray:
     ----------
     1. ISO 13788:2012, Annex E (from memory).
     """
-    p = _checked("vapour pressure", vapour_pressure,
+    p = _checked("vapour_pressure", vapour_pressure,
                  lambda v: (v >= _P_SAT_MIN) & (v <= _P_SAT_MAX),
                  f"{_P_SAT_MIN:.1f} Pa to {_P_SAT_MAX:.0f} Pa, the saturation pressures of "
                  + _SATURATION_RANGE_TEXT)
@@ -472,8 +480,16 @@ def saturation_temperature(vapour_pressure: ArrayLike) -> float | np.ndarray:
 
 
 def _relative_humidity(value: ArrayLike) -> np.ndarray:
-    return _checked("relative humidity", value, lambda v: (v > 0.0) & (v <= 1.0),
+    return _checked("relative_humidity", value, lambda v: (v > 0.0) & (v <= 1.0),
                     "0 < phi <= 1 (a fraction, not a percentage)")
+
+
+def _saturation_range(quantity: str, temperature: ArrayLike, what: str = "") -> np.ndarray:
+    """The temperature, refused (under the caller's parameter name) outside the range of the
+    saturation pressure formulae; ``what`` names the temperature in the message."""
+    return _checked(quantity, temperature,
+                    lambda t: (t >= _SATURATION_T_MIN) & (t <= _SATURATION_T_MAX),
+                    what + _SATURATION_RANGE_TEXT)
 
 
 def dew_point_temperature(air_temperature: ArrayLike,
@@ -509,8 +525,16 @@ def dew_point_temperature(air_temperature: ArrayLike,
     ----------
     1. ISO 13788:2012, Annex E (from memory).
     """
+    T_a = _saturation_range("air_temperature", air_temperature)
     phi = _relative_humidity(relative_humidity)
-    p = phi * np.asarray(saturation_vapour_pressure(air_temperature))
+    p = phi * np.asarray(saturation_vapour_pressure(T_a))
+    # p never exceeds p_sat(T_a), so only a dew point below the range can be refused: air
+    # that dry is refused at its humidity.
+    low = p < _P_SAT_MIN
+    if np.any(low):
+        found = phi[low].flat[0] if np.ndim(phi) else phi
+        raise PhysicsRangeError("relative_humidity", float(found),
+                                "a humidity whose dew point is within " + _SATURATION_RANGE_TEXT)
     return saturation_temperature(p)
 
 
@@ -551,9 +575,12 @@ def surface_relative_humidity(air_temperature: ArrayLike, relative_humidity: Arr
     ----------
     1. ISO 13788:2012, clause 4 (surface humidity) and Annex E (from memory).
     """
+    T_a = _saturation_range("air_temperature", air_temperature)
+    T_s = _saturation_range("surface_temperature", surface_temperature,
+                            "a surface temperature within ")
     phi = _relative_humidity(relative_humidity)
-    p = phi * np.asarray(saturation_vapour_pressure(air_temperature))
-    return _result(p / np.asarray(saturation_vapour_pressure(surface_temperature)))
+    p = phi * np.asarray(saturation_vapour_pressure(T_a))
+    return _result(p / np.asarray(saturation_vapour_pressure(T_s)))
 
 
 def temperature_factor(surface_temperature: ArrayLike, inside_temperature: ArrayLike,
@@ -591,13 +618,14 @@ def temperature_factor(surface_temperature: ArrayLike, inside_temperature: Array
     ----------
     1. ISO 13788:2012, clause 3, temperature factor at the internal surface (from memory).
     """
-    theta_si = _positive("surface temperature", surface_temperature, "K")
-    theta_i = _positive("inside temperature", inside_temperature, "K")
-    theta_e = _positive("outside temperature", outside_temperature, "K")
+    theta_si = _positive("surface_temperature", surface_temperature, "K")
+    theta_i = _positive("inside_temperature", inside_temperature, "K")
+    theta_e = _positive("outside_temperature", outside_temperature, "K")
     difference = theta_i - theta_e
     if np.any(difference == 0.0):
-        raise PhysicsRangeError("inside minus outside temperature", 0.0,
-                                "a non-zero difference: f_Rsi is undefined when they are equal")
+        raise PhysicsRangeError("outside_temperature", _result(theta_e),
+                                "a temperature other than the inside temperature: f_Rsi is "
+                                "undefined when they are equal")
     return _result((theta_si - theta_e) / difference)
 
 
@@ -642,12 +670,12 @@ def cylinder_layer_resistance(inner_diameter: ArrayLike, outer_diameter: ArrayLi
        Wiley, 2011. Eq. 3.33 (radial resistance of a cylindrical wall; equation number from
        memory).
     """
-    d1 = _positive("inner diameter", inner_diameter, "m")
-    d2 = _positive("outer diameter", outer_diameter, "m")
+    d1 = _positive("inner_diameter", inner_diameter, "m")
+    d2 = _positive("outer_diameter", outer_diameter, "m")
     k = _positive("conductivity", conductivity, "W/(m*K)")
     if np.any(d2 <= d1):
-        raise PhysicsRangeError("outer diameter", _result(d2),
-                                f"a diameter greater than the inner diameter {_result(d1)} m")
+        raise PhysicsRangeError("outer_diameter", _result(d2),
+                                "a diameter greater than the inner diameter")
     return _result(np.log(d2 / d1) / (2.0 * np.pi * k))
 
 
@@ -684,7 +712,7 @@ def cylinder_film_resistance(diameter: ArrayLike, coefficient: ArrayLike) -> flo
        Wiley, 2011. §3.3.1 (thermal circuit of a cylindrical wall; from memory).
     """
     D = _positive("diameter", diameter, "m")
-    h = _positive("heat transfer coefficient", coefficient, "W/(m^2*K)")
+    h = _positive("coefficient", coefficient, "W/(m^2*K)")
     return _result(1.0 / (h * np.pi * D))
 
 
@@ -752,24 +780,26 @@ def cylindrical_layers(inner_diameter: float, thicknesses: ArrayLike, conductivi
     1. Bergman, Lavine, Incropera, DeWitt. Fundamentals of Heat and Mass Transfer, 7th ed.
        Wiley, 2011. §3.3 (radial systems; from memory).
     """
-    t = _positive("layer thickness", np.atleast_1d(thicknesses), "m")
-    k = _positive("conductivity", np.atleast_1d(conductivities), "W/(m*K)")
+    t = _positive("thicknesses", np.atleast_1d(thicknesses), "m")
+    k = _positive("conductivities", np.atleast_1d(conductivities), "W/(m*K)")
     if t.ndim != 1 or t.shape != k.shape or t.size == 0:
         raise ValueError(f"expected one conductivity per layer and at least one layer, got "
                          f"{t.size} thicknesses and {k.size} conductivities")
-    d0 = float(_positive("inner diameter", inner_diameter, "m"))
-    T_i = float(_positive("inside temperature", inside_temperature, "K"))
-    T_a = float(_positive("ambient temperature", ambient_temperature, "K"))
+    d0 = float(_positive("inner_diameter", inner_diameter, "m"))
+    T_i = float(_positive("inside_temperature", inside_temperature, "K"))
+    T_a = float(_positive("ambient_temperature", ambient_temperature, "K"))
+    h_o = float(_positive("outside_coefficient", outside_coefficient, "W/(m^2*K)"))
+    h_i = None if inside_coefficient is None else float(
+        _positive("inside_coefficient", inside_coefficient, "W/(m^2*K)"))
     diameters = d0 + 2.0 * np.concatenate(([0.0], np.cumsum(t)))
-    resistances = [0.0 if inside_coefficient is None
-                   else float(cylinder_film_resistance(d0, inside_coefficient))]
+    resistances = [0.0 if h_i is None else float(cylinder_film_resistance(d0, h_i))]
     resistances.extend(np.log(diameters[1:] / diameters[:-1]) / (2.0 * np.pi * k))
-    R_outside = float(cylinder_film_resistance(diameters[-1], outside_coefficient))
+    R_outside = float(cylinder_film_resistance(diameters[-1], h_o))
     R_per_length = float(np.sum(resistances)) + R_outside
     q = (T_i - T_a) / R_per_length
     temperatures = T_i - q * np.cumsum(resistances)
     return RadialHeatFlow(float(diameters[-1]), diameters, R_per_length, q,
-                          float(temperatures[-1]), temperatures, float(outside_coefficient))
+                          float(temperatures[-1]), temperatures, h_o)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -777,6 +807,9 @@ def cylindrical_layers(inner_diameter: float, thicknesses: ArrayLike, conductivi
 # ---------------------------------------------------------------------------------------------
 
 _CHURCHILL_CHU_RA_MAX = 1e12
+_RA_RANGE_TEXT = "0 <= Ra_D <= 1e12 for the Churchill-Chu correlation (Churchill and Chu 1975)"
+_AIR_RANGE_TEXT = (f"{AIR_TABLE_RANGE[0]:g} K to {AIR_TABLE_RANGE[1]:g} K, the rows of the air "
+                   f"table ({AIR_TABLE_SOURCE})")
 _GRAVITY = constants.g  # standard gravity, 9.80665 m/s^2
 
 
@@ -821,9 +854,9 @@ def nusselt_horizontal_cylinder_churchill_chu(rayleigh: ArrayLike,
     2. Bergman, Lavine, Incropera, DeWitt. Fundamentals of Heat and Mass Transfer, 7th ed.
        Wiley, 2011. Eq. 9.34 (equation number from memory).
     """
-    Ra = _checked("Ra_D", rayleigh, lambda r: (r >= 0.0) & (r <= _CHURCHILL_CHU_RA_MAX),
-                  "0 <= Ra_D <= 1e12 for the Churchill-Chu correlation (Churchill and Chu 1975)")
-    Pr = _positive("Pr", prandtl)
+    Ra = _checked("rayleigh", rayleigh, lambda r: (r >= 0.0) & (r <= _CHURCHILL_CHU_RA_MAX),
+                  _RA_RANGE_TEXT)
+    Pr = _positive("prandtl", prandtl)
     denominator = (1.0 + (0.559 / Pr) ** (9.0 / 16.0)) ** (8.0 / 27.0)
     return _result((0.60 + 0.387 * Ra ** (1.0 / 6.0) / denominator) ** 2)
 
@@ -868,7 +901,9 @@ def free_convection_horizontal_cylinder(diameter: float, surface_temperature: fl
     Air properties at the film temperature from :func:`calcdoc.physics.air.air_properties`
     (200 K to 800 K); g is standard gravity 9.80665 m/s² (scipy.constants). The Churchill–Chu
     correlation holds for an isothermal cylinder with Ra_D <= 10¹²; outside either range
-    PhysicsRangeError is raised.
+    PhysicsRangeError is raised: an ambient outside the air table names
+    ``ambient_temperature``, a film temperature outside it ``surface_temperature``, and Ra_D
+    above 10¹² ``diameter`` (Ra_D grows with D³).
 
     Examples
     --------
@@ -882,12 +917,20 @@ def free_convection_horizontal_cylinder(diameter: float, surface_temperature: fl
        Wiley, 2011. Eq. 9.25 (Ra) and 9.34 (Nu), Table A.4 (air); numbers from memory.
     """
     D = float(_positive("diameter", diameter, "m"))
-    T_s = float(_positive("surface temperature", surface_temperature, "K"))
-    T_a = float(_positive("ambient temperature", ambient_temperature, "K"))
+    T_a = float(_checked("ambient_temperature", ambient_temperature,
+                         lambda t: (t >= AIR_TABLE_RANGE[0]) & (t <= AIR_TABLE_RANGE[1]),
+                         _AIR_RANGE_TEXT))
+    # With the ambient in the table, a film temperature outside it is the surface's doing.
+    T_s = float(_checked("surface_temperature", surface_temperature,
+                         lambda t: (t > 0.0) & (0.5 * (t + T_a) >= AIR_TABLE_RANGE[0])
+                         & (0.5 * (t + T_a) <= AIR_TABLE_RANGE[1]),
+                         "a film temperature (T_s + T_inf)/2 within " + _AIR_RANGE_TEXT))
     T_film = 0.5 * (T_s + T_a)
     air = air_properties(T_film)
     Ra = (_GRAVITY * air.expansion_coefficient * abs(T_s - T_a) * D ** 3
           / (air.kinematic_viscosity * air.thermal_diffusivity))
+    if Ra > _CHURCHILL_CHU_RA_MAX:  # D^3 makes the diameter the deciding input
+        raise PhysicsRangeError("diameter", Ra, _RA_RANGE_TEXT)
     Nu = float(nusselt_horizontal_cylinder_churchill_chu(Ra, air.prandtl))
     return FreeConvection(Nu * air.conductivity / D, Nu, Ra, T_film, air)
 
@@ -931,8 +974,8 @@ def radiation_coefficient(emissivity: ArrayLike, surface_temperature: ArrayLike,
        Wiley, 2011. Eq. 1.9 (radiation heat transfer coefficient; equation number from memory).
     """
     eps = _emissivity(emissivity)
-    T_s = _positive("surface temperature", surface_temperature, "K")
-    T_sur = _positive("surroundings temperature", surroundings_temperature, "K")
+    T_s = _positive("surface_temperature", surface_temperature, "K")
+    T_sur = _positive("surroundings_temperature", surroundings_temperature, "K")
     return _result(eps * constants.Stefan_Boltzmann * (T_s ** 2 + T_sur ** 2) * (T_s + T_sur))
 
 
@@ -987,7 +1030,10 @@ def pipe_in_still_air(inner_diameter: float, thicknesses: ArrayLike, conductivit
     radiation to surroundings at T_∞ (:func:`radiation_coefficient`). Assumes steady state, a
     long horizontal isothermal outer surface, still air, large surroundings. The air table
     (200 K to 800 K) must hold the film temperatures at both ends of the bracket, T_∞ and
-    (T_i + T_∞)/2, and Ra_D at T_s = T_i must not exceed 10¹²; otherwise PhysicsRangeError.
+    (T_i + T_∞)/2 (else PhysicsRangeError naming ``ambient_temperature`` or
+    ``inside_temperature``), and Ra_D must not exceed 10¹² on the way (else PhysicsRangeError
+    naming ``emissivity``: the still-air coefficient that giving an emissivity asks for does not
+    apply, and an outside coefficient must be given instead).
 
     Examples
     --------
@@ -1008,6 +1054,12 @@ def pipe_in_still_air(inner_diameter: float, thicknesses: ArrayLike, conductivit
     eps = float(_emissivity(emissivity))
     T_i, T_a, D = float(inside_temperature), float(ambient_temperature), base.outer_diameter
     R_inside = base.R_per_length - float(cylinder_film_resistance(D, 1.0))
+    low, high = AIR_TABLE_RANGE
+    if not low <= T_a <= high:
+        raise PhysicsRangeError("ambient_temperature", T_a, _AIR_RANGE_TEXT)
+    if not low <= 0.5 * (T_i + T_a) <= high:
+        raise PhysicsRangeError("inside_temperature", T_i, "a film temperature (T_i + T_inf)/2 "
+                                "within " + _AIR_RANGE_TEXT)
 
     def outside_coefficients(T_s: float) -> tuple[FreeConvection, float]:
         return (free_convection_horizontal_cylinder(D, T_s, T_a),
@@ -1017,11 +1069,15 @@ def pipe_in_still_air(inner_diameter: float, thicknesses: ArrayLike, conductivit
         convection, h_r = outside_coefficients(T_s)
         return (T_i - T_s) / R_inside - np.pi * D * (convection.h + h_r) * (T_s - T_a)
 
-    if T_i == T_a:
-        T_s = T_a
-    else:
-        T_s = brentq(imbalance, min(T_i, T_a), max(T_i, T_a), xtol=1e-9)
-    convection, h_r = outside_coefficients(T_s)
+    try:
+        if T_i == T_a:
+            T_s = T_a
+        else:
+            T_s = brentq(imbalance, min(T_i, T_a), max(T_i, T_a), xtol=1e-9)
+        convection, h_r = outside_coefficients(T_s)
+    except PhysicsRangeError as exc:  # Ra_D above 1e12; the film temperatures were checked
+        raise PhysicsRangeError("emissivity", exc.value, _RA_RANGE_TEXT + "; give the outside "
+                                "coefficient instead") from None
     flow = cylindrical_layers(inner_diameter, thicknesses, conductivities, inside_temperature,
                               ambient_temperature, convection.h + h_r, inside_coefficient)
     return PipeInStillAir(flow, convection, h_r)
