@@ -52,7 +52,7 @@ def test_check_json_prints_results_json(tmp_path, capsys):
     capsys.readouterr()
     assert main(["check", str(folder), "--json"]) == 0
     doc = json.loads(capsys.readouterr().out)
-    assert doc["format_version"] == 1
+    assert doc["format_version"] == 2
     assert not (folder / "build").exists()
 
 

@@ -21,10 +21,6 @@ def registry() -> dict[str, Kind]:
     for info in sorted(pkgutil.iter_modules(__path__), key=lambda m: m.name):
         if info.name == "base" or info.name.startswith("_"):
             continue
-        import os  # TEMPORARY while the kinds move to the data API
-        only = os.environ.get("CALCDOC_ONLY_KINDS")
-        if only and info.name not in only.split(","):
-            continue
         module = importlib.import_module(f"{__name__}.{info.name}")
         for kind in getattr(module, "KINDS", ()):
             if kind.name in kinds:

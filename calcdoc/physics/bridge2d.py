@@ -470,7 +470,7 @@ class TemperatureField:
     ``x_nodes`` (nx + 1), ``y_nodes`` (ny + 1): grid lines [m]; ``x_centres`` (nx),
     ``y_centres`` (ny): cell centres [m]; ``cell_temperature`` (ny, nx) [K] and
     ``node_temperature`` (ny + 1, nx + 1) [K], NaN outside the body (rows are y, columns x, as
-    ``matplotlib.pyplot.contour(x, y, Z)`` takes them); ``region_index`` (ny, nx), -1 outside.
+    a contour plot takes them); ``region_index`` (ny, nx), -1 outside.
     """
 
     x_nodes: np.ndarray
