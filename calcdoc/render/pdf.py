@@ -5,8 +5,9 @@ The PDF is PDF/A-3b (the variant that keeps attachments), with every input file 
 a rebuild of the same inputs is byte-identical. WeasyPrint writes the PDF/A parts (XMP
 identification, the sRGB output intent with its ICC profile, embedded font programs, each file
 specification's /AFRelationship); calcdoc names the relationships (the inputs are the Source of
-the document, results.json its Data) and lists each file once in the catalog's /AF. Resource loading is confined: only ``data:`` URLs
-and files inside the build folder are served; anything else fails the build.
+the document, results.json its Data) and lists each file once in the catalog's /AF. Resource
+loading is confined: only ``data:`` URLs and files inside the build folder are served; anything
+else fails the build.
 """
 
 from __future__ import annotations
