@@ -110,9 +110,10 @@ def sign_package(package: Path, key: Path, out: Path, passphrase: str) -> Sealed
     """Sign the calcdoc package ``package`` with the PKCS#12 key file ``key`` and write the
     signed copy to ``out`` (a PAdES signature, ETSI.CAdES.detached, in an incremental update).
 
-    Raise InputErrors, having written nothing, when the package is not a calcdoc PDF, ``out``
-    is the package itself or an existing file that calcdoc did not write, the key file cannot be
-    read or opened with ``passphrase``, or its certificate is not valid now."""
+    Raise InputErrors, having written nothing, when the package is not a calcdoc PDF or is
+    signed already by a signature that does not hold, ``out`` is the package itself or an
+    existing file that calcdoc did not write, the key file cannot be read or opened with
+    ``passphrase``, or its certificate is not valid now."""
     from calcdoc.archive import MAX_ARCHIVE_BYTES, _read_bounded, pdf_attachments
 
     _check_out(package, out)
@@ -120,6 +121,11 @@ def sign_package(package: Path, key: Path, out: Path, passphrase: str) -> Sealed
     if "results.json" not in pdf_attachments(data, str(package)):
         raise _refuse(str(package), "not a calcdoc package", "a PDF with results.json attached",
                       "no results.json attached")
+    earlier = check_seal_data(data, str(package))
+    if earlier.differences:  # a second signature would seem to vouch for a broken first one
+        raise _refuse(str(package), "a signed package whose signature does not hold",
+                      "an unsigned package or one whose signatures verify",
+                      earlier.differences[0].removeprefix("seal: "))
     key_data = _read_bounded(key, MAX_KEY_BYTES, str(key))
     signer, name = _load_signer(key_data, passphrase, str(key))
     signed, field_name = _sign(data, signer, str(package))

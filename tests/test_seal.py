@@ -372,3 +372,13 @@ def test_verify_of_a_signature_value_overwritten_with_zeros__exit_2(signed, caps
     assert "Traceback" not in captured.err and set(signed.parent.iterdir()) == before
     assert captured.err.startswith(f"{signed}: error: ")
     assert "(expected a PDF signed as calcdoc sign signs it, got " in captured.err
+
+
+def test_sign_of_a_signed_copy_changed_after_signing__exit_2(tmp_path, signed, key, capsys):
+    signed.write_bytes(incremental_update(signed, _change_page))
+    text = refused(["sign", str(signed), "--key", str(key), "--out", str(tmp_path / "s2.pdf")],
+                   capsys, tmp_path)
+    assert text.startswith(f"{signed}: error: a signed package whose signature does not hold "
+                           f"(expected an unsigned package or one whose signatures verify, got "
+                           f"signature calcdoc-seal: an update appended after the signature "
+                           f"changes the document (changed: ")
