@@ -404,13 +404,20 @@ def evaluate_archive(archive: Archive):
     return results_document(evaluate_folder(files))
 
 
-def verify(path: Path) -> list[str]:
+def verify(path: Path, notes: list[str] | None = None) -> list[str]:
     """Check a build folder's digests and re-evaluate the archived inputs of a build or PDF;
     return every difference found (empty: it holds). Raise InputErrors for a file that is not
-    a readable calcdoc package."""
+    a readable calcdoc package. ``notes``, when given, receives what is information rather than
+    a difference: who signed a signed PDF, and what each signature covers."""
     archive = open_archive(path)
     fresh = evaluate_archive(archive)
     lines = list(archive.integrity)
+    if not path.is_dir():  # a signed PDF: its signatures too (calcdoc/seal.py)
+        from calcdoc.seal import check_seal
+        seal = check_seal(path)
+        lines.extend(seal.differences)
+        if notes is not None:
+            notes.extend(seal.notes)
     differences = compare_results(archive.results, fresh)
     recorded_version = archive.results.get("calcdoc_version")
     if recorded_version != __version__ and differences:

@@ -1,9 +1,10 @@
 """Command line only: parse arguments, call the library, map errors to exit codes.
 
 Exit status: 0 success; 1 a check failed (``check --strict``), ``--final`` refused, or verify/diff
-found a difference; 2 bad input or usage, with ``FILE:LINE:COL: error: ...`` on stderr and
-nothing written; 3 an internal fault (a defect of calcdoc: reported as one, never as a
-traceback unless ``CALCDOC_DEBUG`` is set).
+found a difference (a broken or overwritten signature among them); 2 bad input or usage (for
+sign also a missing or wrong passphrase, an unreadable key, or an --out it may not replace),
+with ``FILE:LINE:COL: error: ...`` on stderr and nothing written; 3 an internal fault (a defect
+of calcdoc: reported as one, never as a traceback unless ``CALCDOC_DEBUG`` is set).
 """
 
 from __future__ import annotations
@@ -255,8 +256,9 @@ def cmd_new(args) -> int:
 
 def cmd_verify(args) -> int:
     from calcdoc.archive import verify
-    lines = verify(Path(args.path))
-    for line in lines:
+    notes: list[str] = []
+    lines = verify(Path(args.path), notes=notes)
+    for line in notes + lines:
         print(line)
     if lines:
         print(f"{args.path}: NOT verified — {len(lines)} difference(s) listed above")
@@ -265,10 +267,23 @@ def cmd_verify(args) -> int:
         print(f"{args.path}: verified — every file matches its SHA-256 in manifest.json, the "
               f"PDF carries the same inputs and results, and a fresh evaluation of the archived "
               f"inputs gives the recorded results")
+    elif notes:
+        print(f"{args.path}: verified — the signatures hold (see above) and a fresh evaluation "
+              f"of the attached inputs gives the attached results")
     else:
         print(f"{args.path}: verified — a fresh evaluation of the attached inputs gives the "
               f"attached results (the pages themselves are covered by no digest: verify the "
               f"build folder's manifest for that)")
+    return 0
+
+
+def cmd_sign(args) -> int:
+    from calcdoc.seal import passphrase_from_environment, sign_package
+    key = Path(args.key)
+    sealed = sign_package(Path(args.package), key, Path(args.out),
+                          passphrase_from_environment(key))
+    print(f"signed {args.package} as {sealed.signer} (signature field {sealed.field_name}): "
+          f"wrote {sealed.out}")
     return 0
 
 
@@ -319,6 +334,13 @@ def parser() -> argparse.ArgumentParser:
     v = sub.add_parser("verify", help="re-evaluate an archived build or PDF and compare")
     v.add_argument("path")
     v.set_defaults(func=cmd_verify)
+    s = sub.add_parser("sign", help="add a digital signature (PAdES) to a PDF package; the "
+                       "key's passphrase is read from CALCDOC_KEY_PASSPHRASE")
+    s.add_argument("package", help="the PDF package to sign")
+    s.add_argument("--key", required=True, help="PKCS#12 file (.p12, .pfx) with the private key "
+                   "and its certificate")
+    s.add_argument("--out", required=True, help="the signed copy to write (a new file)")
+    s.set_defaults(func=cmd_sign)
     d = sub.add_parser("diff", help="what changed between two builds")
     d.add_argument("old")
     d.add_argument("new")

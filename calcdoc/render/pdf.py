@@ -2,8 +2,12 @@
 
 The PDF is PDF/A-3b (the variant that keeps attachments), with every input file attached so that
 ``calcdoc verify`` can re-run it years later, and with a fixed identifier and fixed dates so that
-a rebuild of the same inputs is byte-identical. Resource loading is confined: only ``data:`` URLs
-and files inside the build folder are served; anything else fails the build.
+a rebuild of the same inputs is byte-identical. WeasyPrint writes the PDF/A parts (XMP
+identification, the sRGB output intent with its ICC profile, embedded font programs, each file
+specification's /AFRelationship); calcdoc names the relationships (the inputs are the Source of
+the document, results.json its Data) and lists each file once in the catalog's /AF. Resource
+loading is confined: only ``data:`` URLs and files inside the build folder are served; anything
+else fails the build.
 """
 
 from __future__ import annotations
@@ -59,13 +63,29 @@ def write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[s
     fetcher = ConfinedFetcher(work_dir)
     when = _fixed_datetime(revision_date)
     files = [weasyprint.Attachment(string=data, name=name, description=_describe(name),
-                                   created=when, modified=when, relationship="Source",
+                                   created=when, modified=when, relationship=_relationship(name),
                                    url_fetcher=fetcher, base_url=str(work_dir))
              for name, data in attachments]
     document = weasyprint.HTML(string=html, base_url=str(work_dir) + "/", url_fetcher=fetcher)
     identifier = hashlib.sha256(digest_seed.encode()).hexdigest()[:32].encode()
     document.write_pdf(target, attachments=files, pdf_variant="pdf/a-3b",
-                       pdf_identifier=identifier, uncompressed_pdf=False)
+                       pdf_identifier=identifier, uncompressed_pdf=False,
+                       finisher=_list_associated_files_once)
+
+
+def _relationship(name: str) -> str:
+    """PDF/A-3 (ISO 19005-3 6.8) asks how each attached file relates to the document: the input
+    files are the Source it was made from, results.json the Data it shows."""
+    return "Data" if name == "results.json" else "Source"
+
+
+def _list_associated_files_once(document, pdf) -> None:
+    """WeasyPrint 70 puts every attachment into the catalog's /AF twice (once from the
+    EmbeddedFiles name tree, once from its file specification); keep the first of each, in
+    order, so that the array names each associated file once."""
+    listed = pdf.catalog.get("AF")
+    if listed:
+        pdf.catalog["AF"] = type(listed)(dict.fromkeys(listed))
 
 
 def _fixed_datetime(date_text: str) -> datetime.datetime:
