@@ -744,7 +744,7 @@ def test_bad_input__air_too_dry_for_the_dew_point_range_located_at_the_humidity(
         "proj/sheets/s.yaml:11:33: error: S.wall.inputs.inside_relative_humidity: outside the "
         "range of the method (expected a humidity whose dew point is within -40 degC to +80 degC "
         "(233.15 K to 353.15 K), where the ISO 13788:2012 Annex E formulae agree with IAPWS "
-        "within 2 %, got 0.05)"]
+        "within 2 %, got '5 %')"]
 
 
 def test_bad_input__surface_below_the_saturation_range_located_at_the_outside_temperature(

@@ -227,7 +227,7 @@ def test_latex_the_text_layout_does_not_draw_falls_back_to_the_image(latex):
 @pytest.mark.parametrize("expression, shown", [
     ("sqrt(a**2 + b_2**2)", "√{a^{2} + b_{2}^{2}}"),
     ("exp(-x / tau)", "exp((−x)/(τ))"),
-    ("log(p_v / 610.5)", "log((p_{v})/(610.5))"),
+    ("log(p_v / 610.5)", "ln((p_{v})/(610.5))"),
     ("log10(Ra_D)", "log_{10}(Ra_{D})"),
     ("sin(phi) * cos(theta_si) + tan(alpha)", "sin(ϕ) · cos(θ_{si}) + tan(α)"),
     ("abs(Q_in - Q_out) / Q_in", "(|Q_{in} − Q_{out}|)/(Q_{in})"),

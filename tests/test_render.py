@@ -54,7 +54,7 @@ blocks:
       A: {value: 100 m^2, source: Drawing A-101 (example)}
       dT: 20 K
     steps:
-      - {name: Q, expr: "U * A * dT", unit: W, label: Heat loss}
+      - {name: Q, expr: "U * A * dT", unit: W, label: Heat loss, source: "ISO 13790:2008, 8.3 (example of a published source)"}
     checks:
       - {result: Q, at_most: 400 W, source: Plant allowance (example)}
 """
@@ -276,12 +276,17 @@ def test_citations_link_to_the_numbered_references_on_site_and_in_pdf(built):
     sheet = (out / "sheet-S1.html").read_text("utf-8")
     index = (out / "index.html").read_text("utf-8")
     cited = set(re.findall(r'href="index\.html#ref-(\d+)"', sheet))
-    assert cited, "the sheet cites its sources as [n]"
+    assert cited, "the sheet cites its published sources as [n, clause]"
     for n in cited:
         assert f'id="ref-{n}"' in index
-    entry = re.search(r'<li id="ref-\d+"[^>]*>.*?Drawing A-101 \(example\).*?</li>', index,
-                      re.S).group(0)
+    # a published document is a numbered reference, cited with the clause...
+    assert re.search(r'\[\d+, 8\.3 \(example of a published source\)\]', sheet)
+    entry = re.search(r'<li id="ref-\d+"[^>]*>.*?ISO 13790:2008.*?</li>', index, re.S).group(0)
     assert 'href="sheet-S1.html#S1.loss"' in entry, "each reference lists where it is used"
+    # ...project information is printed beside the input and listed apart, never numbered
+    assert not re.search(r'<li id="ref-\d+"[^>]*>[^<]*Drawing A-101', index)
+    listing = index[index.index('id="project-information"'):]
+    assert "Drawing A-101 (example)" in listing and 'href="sheet-S1.html#S1.loss"' in listing
 
 
 def test_review_comment_is_shown_at_its_block_and_counted_open_on_the_index(built):

@@ -82,7 +82,7 @@ def test_significant_figures_keep_integer_digits():
 
 def test_us_display_units__u_value_in_btu():
     # 1 Btu/(h·ft²·°F) = 5.678263 W/(m²·K) (NIST SP 811 B.9): 0.273 W/(m²·K) = 0.0481
-    from calcdoc.units import display_unit_for
+    from calcdoc.render.numbers import display_unit_for
     unit = display_unit_for("W/(m^2*K)", None, None, "US")
     assert format_quantity(0.273, "W/(m^2*K)", unit) == "0.0481 Btu/(h·ft²·°F)"
     # 21 °C = 69.8 °F (T/°F = 1.8·t/°C + 32)
