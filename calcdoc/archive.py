@@ -62,13 +62,14 @@ def results_document(package) -> dict:
                 "checks": [{"result": c.result, "relation": c.relation, "value_si": c.value_si,
                             "limit_si": c.limit_si, "margin_si": c.margin_si,
                             "utilisation": c.utilisation, "passed": c.passed,
-                            "source": c.source,
+                            "source": str(c.source or ""),
                             **({"note": fill(c.note, sig, system)} if c.note else {})}
                            for c in block.checks],
                 "series": {name: {"x_si": s.x, "x_unit": s.x_unit, "y_si": s.y,
                                   "si_unit": s.y_unit, "label": s.label}
                            for name, s in out.series.items()},
-                "warnings": [{"message": fill(w["text"], sig, system), "source": w["source"]}
+                "warnings": [{"message": fill(w["text"], sig, system),
+                              "source": str(w["source"] or "")}
                              for w in out.warnings],
                 "steps": [s.record() for s in block.printed_steps(sig, system)],
             }

@@ -13,7 +13,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any
 
-__all__ = ["ABSOLUTE", "DIFFERENCE", "Value", "Phrase", "Step", "FigureData", "Axis", "Line",
+__all__ = ["ABSOLUTE", "DIFFERENCE", "Value", "library_value", "Phrase", "Step", "FigureData", "Axis", "Line",
            "Band", "Box", "Mark", "Point", "Contours", "phrase"]
 
 ABSOLUTE = "absolute"
@@ -36,6 +36,14 @@ class Value:
     temperature: str | None = None
     written: str | None = None
     given: bool = False
+    origin: str | None = None  # the library value it is: 'materials.NAME.PROPERTY'
+
+
+def library_value(material: dict, prop: str, unit: str) -> Value:
+    """Return a material's property as an operand that remembers where it came from, so that
+    the package can list it if it is still to be confirmed."""
+    return Value(float(material[prop]), unit, given=True,
+                 origin=f"materials.{material['name']}.{prop}")
 
 
 @dataclass(frozen=True)

@@ -48,6 +48,15 @@ def _sources_of(block):
     yield from block.kind.references
 
 
+def _origins(block) -> list[str]:
+    found: list[str] = []
+    for step in block.output.steps:
+        for value in step.operands.values():
+            if value.origin and value.origin not in found:
+                found.append(value.origin)
+    return found
+
+
 def values_to_confirm(package) -> list[ToConfirm]:
     """Return every unconfirmed value the package uses, in the order first used, each with the
     project's confirmation where it has recorded one."""
@@ -63,20 +72,17 @@ def values_to_confirm(package) -> list[ToConfirm]:
 
     for sheet in package.sheets:
         for block in sheet.blocks:
-            for record in block.inputs:
-                if record.origin != "material":
-                    continue
-                name = record.si
+            # The library values a block's working uses: its steps' operands say so.
+            for origin in _origins(block):
+                _, name, prop = origin.split(".", 2)
                 entry = project.materials.get(name, {})
-                for prop, cited in entry.get("sources", {}).items():
-                    if cited.get("confirmed") is not False:
-                        continue
-                    unit = MATERIAL_UNITS.get(prop)
-                    value = Value(entry[prop], unit, given=True) if unit and prop in entry \
-                        else None
-                    add(f"materials.{name}.{prop}",
-                        f"{entry.get('title', name)}: {prop.replace('_', ' ')}", value,
-                        cited.get("source", ""), block.key)
+                cited = entry.get("sources", {}).get(prop, {})
+                if cited.get("confirmed") is not False:
+                    continue
+                unit = MATERIAL_UNITS.get(prop)
+                value = Value(entry[prop], unit, given=True) if unit and prop in entry else None
+                add(origin, f"{entry.get('title', name)}: {prop.replace('_', ' ')}", value,
+                    cited.get("source", ""), block.key)
             for source in _sources_of(block):
                 if isinstance(source, Cite) and not source.confirmed:
                     add(source.key or str(source), source.value or str(source), None,

@@ -164,3 +164,72 @@ def test_same_person_written_two_ways__same_state_on_site_pdf_and_final(tmp_path
     code = main(["build", str(project), "--out", str(tmp_path / "final"), "--no-pdf", "--final"])
     assert code == 1
     assert "sheet W3 is checked by its preparer (a engineer)" in capsys.readouterr().err
+
+
+WALL_SHEET = """\
+id: W9
+title: Wall W9 transmittance
+signoff:
+  prepared: {by: A. Engineer, date: 2026-11-20, rev: C1}
+  checked: {by: B. Checker, date: 2026-11-24, rev: C1}
+blocks:
+  - id: wall
+    kind: layered_wall
+    title: Wall U-value
+    inputs:
+      layers:
+        - {name: Insulation, thickness: 100 mm, material: mineral_wool}
+      inside_temperature: 20 degC
+      outside_temperature: -3 degC
+"""
+
+CONFIRMED = """\
+confirmations:
+  - {value: materials.mineral_wool.conductivity, by: B. Checker, date: 2026-11-30,
+     against: "Manufacturer's declaration of performance DoP-123 (example)"}
+  - {value: "ISO 13788:2012 R_si 0.25", by: B. Checker, date: 2026-11-30,
+     against: "ISO 13788:2012 as printed"}
+  - {value: "ISO 6946:2017 6.7.1", by: B. Checker, date: 2026-11-30,
+     against: "ISO 6946:2017 as printed"}
+  - {value: "ISO 6946:2017 Annex F", by: B. Checker, date: 2026-11-30,
+     against: "ISO 6946:2017 as printed"}
+"""
+
+
+def test_final_refuses_an_unconfirmed_library_value_and_accepts_it_once_confirmed(tmp_path,
+                                                                                  capsys):
+    # A library value recalled rather than read from its printed source may not go into an
+    # issued package unnamed: --final lists it; the project confirms it against a document.
+    root = tmp_path / "proj"
+    (root / "sheets").mkdir(parents=True)
+    (root / "project.yaml").write_text(PROJECT.format(approver="C. Approver"))
+    (root / "sheets" / "w9.yaml").write_text(WALL_SHEET)
+    assert main(["build", str(root), "--out", str(tmp_path / "out"), "--no-pdf", "--final"]) == 1
+    err = capsys.readouterr().err
+    assert ("value materials.mineral_wool.conductivity (Mineral wool batt: conductivity) is not "
+            "confirmed against its printed source (Typical declared value of EN 13162 mineral "
+            "wool batts): confirm it in project.yaml confirmations, or give the project's own "
+            "value with its source") in err
+    assert "value ISO 13788:2012 R_si 0.25 (R_si = 0.25 m²·K/W for surface humidity and mould)" \
+        in err
+    assert not (tmp_path / "out").exists()
+    (root / "project.yaml").write_text(PROJECT.format(approver="C. Approver") + CONFIRMED)
+    assert main(["build", str(root), "--out", str(tmp_path / "out"), "--no-pdf", "--final"]) == 0
+    import html
+    index = html.unescape((tmp_path / "out" / "index.html").read_text("utf-8"))
+    section = index[index.index('id="values-to-confirm"'):index.index('id="references"')]
+    assert "Every library value used is confirmed" in section
+    assert "Manufacturer's declaration of performance DoP-123 (example)" in section
+
+
+def test_a_confirmation_of_a_value_not_used_is_a_located_error(tmp_path, capsys):
+    root = tmp_path / "proj"
+    (root / "sheets").mkdir(parents=True)
+    (root / "project.yaml").write_text(PROJECT.format(approver="") + CONFIRMED.replace(
+        "materials.mineral_wool.conductivity", "materials.mineral_wol.conductivity"))
+    (root / "sheets" / "w9.yaml").write_text(WALL_SHEET)
+    assert main(["check", str(root)]) == 2
+    err = capsys.readouterr().err
+    assert "proj/project.yaml:9:5: error: confirmations.value: confirms a value the package " \
+           "does not use or that needs no confirmation" in err
+    assert "hint: did you mean 'materials.mineral_wool.conductivity'?" in err

@@ -17,7 +17,8 @@ import numpy as np
 from scipy.constants import g as STANDARD_GRAVITY
 from scipy.constants import zero_Celsius
 
-from calcdoc.data import Axis, Band, FigureData, Line, Mark
+from calcdoc.data import Axis, Band, FigureData, Line, Mark, library_value
+from calcdoc.references import Cite
 from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, REQUIRED, Choice, InputRecord,
                                 InvalidInput, Items, Kind, MaterialField, Quantity, Record,
                                 ResultSpec, Text, Value, phrase)
@@ -33,14 +34,21 @@ from calcdoc.physics.conduction import (CHURCHILL_CHU_SOURCE, COMBINED_METHOD_SO
 
 __all__ = ["KINDS", "LAYERED_WALL", "CYLINDRICAL_LAYERS"]
 
-SERIES_SOURCE = "ISO 6946:2017, 6.7.1, homogeneous layers in series (subclause number from memory)"
-CONDENSATION_RSI_SOURCE = ("ISO 13788:2012, internal surface resistance 0.25 m²·K/W of opaque "
-                           "elements for surface humidity and mould (value from memory; clause "
-                           "not checked against the printed standard)")
+# Clauses and values recalled, not yet read against the printed standard: data, not words in
+# the source (the package lists them under "Values to confirm").
+SERIES_SOURCE = Cite("ISO 6946:2017", "6.7.1, homogeneous layers in series", confirmed=False,
+                     key="ISO 6946:2017 6.7.1", value="clause 6.7.1 for homogeneous layers in "
+                     "series")
+CONDENSATION_RSI_SOURCE = Cite("ISO 13788:2012", "internal surface resistance of opaque "
+                               "elements for surface humidity and mould", confirmed=False,
+                               key="ISO 13788:2012 R_si 0.25",
+                               value="R_si = 0.25 m²·K/W for surface humidity and mould")
 TEMPERATURE_FACTOR_SOURCE = "ISO 13788:2012, temperature factor at the internal surface f_Rsi"
-MOULD_SOURCE = ("ISO 13788:2012, critical surface relative humidity of 80 % for mould growth "
-                "(from memory)")
-CORRECTIONS_SOURCE = "ISO 6946:2017, Annex F (corrections to U; from memory)"
+MOULD_SOURCE = Cite("ISO 13788:2012", "critical surface relative humidity for mould growth",
+                    confirmed=False, key="ISO 13788:2012 mould 80 %",
+                    value="80 % surface relative humidity as the mould criterion")
+CORRECTIONS_SOURCE = Cite("ISO 6946:2017", "Annex F, corrections to U", confirmed=False,
+                          key="ISO 6946:2017 Annex F", value="Annex F for the corrections to U")
 STEFAN_BOLTZMANN_SOURCE = "Stefan–Boltzmann law, σ from scipy.constants (CODATA)"
 RADIAL_SOURCE = "Fourier's law, radial conduction through coaxial cylindrical layers"
 BRENT_SOURCE = "Brent's method (scipy.optimize.brentq)"
@@ -175,8 +183,9 @@ def _conductivity(out, record, path: str) -> tuple[Value, str]:
     an input prints as written, a library value in full."""
     material = record.get("material")
     if material is not None:
-        return (Value(material["conductivity"], "W/(m*K)", given=True),
-                material.get("source", ""))
+        return (library_value(material, "conductivity", "W/(m*K)"),
+                material.get("sources", {}).get("conductivity", {}).get(
+                    "source", material.get("source", "")))
     return out.input(f"{path}.conductivity"), ""
 
 

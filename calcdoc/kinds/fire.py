@@ -802,8 +802,10 @@ def _protected_first_step(inp, out, run, protection: dict):
 
     def prop(key, unit):
         si = float(protection[key])
-        return Value(si, unit, given=True) if material else _operand(out, f"protection.{key}",
-                                                                     si, unit)
+        if material:
+            return Value(si, unit, given=True,
+                         origin=f"materials.{protection['material']['name']}.{key}")
+        return _operand(out, f"protection.{key}", si, unit)
     lambda_p, rho_p, c_p = (prop("conductivity", "W/(m*K)"), prop("density", "kg/m^3"),
                             prop("specific_heat", "J/(kg*K)"))
     a_p_v = out.input("section_factor")

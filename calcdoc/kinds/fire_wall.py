@@ -23,7 +23,7 @@ import numpy as np
 from scipy.constants import Stefan_Boltzmann as SIGMA
 
 from calcdoc.data import (ABSOLUTE, DIFFERENCE, Axis, Band, FigureData, Line, Mark, Phrase, Point,
-                          Value, phrase)
+                          Value, library_value, phrase)
 from calcdoc.errors import MissingInput
 from calcdoc.kinds.base import (Choice, InvalidInput, Items, Kind, MaterialField, Quantity,
                                 ResultSpec, Text)
@@ -357,9 +357,9 @@ def _layer_steps(inp, out, plans: list[_LayerPlan]):
                 lam, rho, c = (out.input(f"layers[{i}].{name}") for name in _CONSTANT)
                 source = layer.get("source") or ""
             else:
-                lam, rho, c = (_given(material["conductivity"], "W/(m*K)"),
-                               _given(material["density"], "kg/m^3"),
-                               _given(material["specific_heat"], "J/(kg*K)"))
+                lam, rho, c = (library_value(material, "conductivity", "W/(m*K)"),
+                               library_value(material, "density", "kg/m^3"),
+                               library_value(material, "specific_heat", "J/(kg*K)"))
                 source = material.get("source", "")
         out.step("a_20", "lambda_20 / (rho_20 * c_p_20)",
                  {"lambda_20": lam, "rho_20": rho, "c_p_20": c},

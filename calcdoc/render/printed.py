@@ -171,10 +171,10 @@ class PrintedStep:
         """The step as results.json keeps it (format 2)."""
         if self.expr is None:
             return {"name": self.name, "label": self.label, "statement": self.statement,
-                    "result": self.result.machine, "source": self.source}
+                    "result": self.result.machine, "source": str(self.source or "")}
         return {"name": self.name, "label": self.label, "expr": self.expr,
                 "values": {k: p.machine for k, p in self.values.items()},
-                "result": self.result.machine, "source": self.source}
+                "result": self.result.machine, "source": str(self.source or "")}
 
 
 def _symbol(name: str, symbols: dict) -> str:
