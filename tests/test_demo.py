@@ -93,8 +93,50 @@ def test_materials_appendix_lists_each_material_with_its_source(demo):
     index = (demo / "index.html").read_text()
     section = index.split('id="materials"')[1].split('id="references"')[0]
     # brick_clay: 0.77 W/(m·K), the library's value (CIBSE Guide A Table 3.52, from memory)
-    assert "<code>brick_clay</code>" in section and "0.77 W/(m·K)" in section
-    assert "temperature-dependent (en1992_concrete)" in section
+    assert '<code class="meaning">brick_clay</code>' in section and "0.77 W/(m·K)" in section
+    assert "temperature-dependent law (en1992_concrete)" in section
     # the EN 1992-1-2 concrete law is plotted once, though two W7 blocks use it
     for prop in ("thermal conductivity λ", "specific heat", "density ρ"):
         assert section.count(f"Material law, {prop}, 20 °C to 1200 °C: EN 1992-1-2") == 1
+
+
+def _sheet_pages(pdf: Path) -> dict[str, int]:
+    """Pages of each sheet of the package, from the PDF's outline (a bookmark per sheet)."""
+    reader = PdfReader(str(pdf))
+    marks = sorted((reader.get_destination_page_number(item), item.title)
+                   for item in reader.outline if not isinstance(item, list))
+    ends = [page for page, _ in marks[1:]] + [len(reader.pages)]
+    return {title.split()[0]: end - page for (page, title), end in zip(marks, ends)}
+
+
+def test_the_package_reads_in_one_pass__pages_per_sheet_bounded(demo):
+    # A reviewer reads the package front to back: at most 4 pages a sheet on average and no
+    # sheet over 8 (the bound of the issue "the package a reviewer reads in one pass"), with
+    # every input, step, result, check and source still in it (the tests above and
+    # tests/test_redo.py hold those).
+    doc = json.loads((demo / "results.json").read_text())
+    sheets = [s["id"] for s in doc["sheets"]]
+    pages = _sheet_pages(demo / "package.pdf")
+    sheet_pages = {s: pages[s] for s in sheets}
+    assert sum(sheet_pages.values()) <= 4 * len(sheets), sheet_pages
+    assert max(sheet_pages.values()) <= 8, sheet_pages
+    # cover, contents and summary, appendices: a few pages more, never a second package
+    assert len(PdfReader(str(demo / "package.pdf")).pages) <= 4 * len(sheets) + 8
+
+
+def test_each_published_document_is_one_reference_entry(demo):
+    # ISO 6946:2017 is one entry however many clauses of it are cited (common practice: a
+    # reference list names each document and edition once; the text cites [n, clause]).
+    index = (demo / "index.html").read_text()
+    references = re.findall(r'<li id="ref-\d+"[^>]*><span class="ref-n">\[\d+\]</span> ([^<]*)',
+                            index)
+    assert references, "the package has numbered references"
+    assert len(references) == len(set(references))
+    documents = [re.match(r"^(ISO|EN|BS|PD)\s[\d-]+(:\d{4})?", r) for r in references]
+    designations = [m.group(0) for m in documents if m]
+    assert len(designations) == len(set(designations)) and "ISO 6946:2017" in designations
+    # project papers are not numbered among them
+    assert not any("(example)" in r for r in references)
+    # and no package says a value is from memory
+    for page in demo.glob("*.html"):
+        assert "from memory" not in page.read_text()

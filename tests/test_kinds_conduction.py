@@ -686,11 +686,16 @@ def test_pipe_still_air_steps__iteration_stated_then_churchill_chu_written_out(e
     assert found["R_2"].expr == "log(D_2 / D_1) / (2 * pi * k_2)"
     assert found["R_2"].group == "Resistance of each layer per metre"
     assert found["R"].expr == "R_1 + R_2 + R_o"
-    # The air table's rows are interpolated in the open: Bergman et al. Table A.4 (from memory)
-    # has k = 0.0263 W/(m·K) at 300 K and 0.0223 W/(m·K) at 250 K.
+    # A table look-up is a statement naming the two rows it lies between: Bergman et al.
+    # Table A.4 (from memory) has k = 0.0263 W/(m·K) at 300 K and 0.0223 W/(m·K) at 250 K.
     k = found["k_air"]
-    assert k.expr == "k_air_lo + (k_air_hi - k_air_lo) * (T_f - T_lo) / (T_hi - T_lo)"
-    assert (k.operands["k_air_lo"].si, k.operands["k_air_hi"].si) == (0.0223, 0.0263)
+    assert k.expr is None
+    assert k.statement.template == "interpolated between {lo} at {T_lo} and {hi} at {T_hi}"
+    assert (k.statement.values["lo"].si, k.statement.values["hi"].si) == (0.0223, 0.0263)
+    lo, hi = k.statement.values["T_lo"].si, k.statement.values["T_hi"].si
+    assert lo <= k.operands.get("T_f", found["T_f"].result).si <= hi
+    assert k.result.si == pytest.approx(0.0223 + (0.0263 - 0.0223) * (found["T_f"].result.si
+                                                                     - lo) / (hi - lo))
 
 
 def _only_my_sheets(tmp_path: Path) -> Path:

@@ -310,12 +310,11 @@ def test_formula_images_are_sized_in_pt_from_css_px(tmp_path):
     svg = base64.b64decode(re.search(r"base64,([^\"]+)", img).group(1)).decode()
     width_px = float(re.search(r'width="([\d.]+)"', svg).group(1))
     assert width_pt == pytest.approx(width_px * 0.75, abs=0.01)
-    # Drawn at 10 pt, a capital M stands one cap height tall, about 0.65–0.72 em in text faces
-    # (from memory), inside ziamath's 1 px margin above and below.
-    assert FORMULA_PT == 10.0
+    # Drawn at FORMULA_PT, a capital M stands one cap height tall, about 0.65–0.72 em in text
+    # faces (from memory), inside ziamath's 1 px margin above and below.
     height_px = float(re.search(r'height="([\d.]+)"', svg).group(1))
     cap_height_pt = height_px * 0.75 - 2 * 0.75
-    assert 6.0 < cap_height_pt < 7.5
+    assert 0.6 * FORMULA_PT < cap_height_pt < 0.75 * FORMULA_PT
 
 
 def test_formula_images_carry_their_latex_as_alt_text():

@@ -857,13 +857,15 @@ def _still_air_steps(out, inp, still, D_n: Value, n: int, T_a: Value, symbols: d
                                     ("alpha", "thermal_diffusivity", "m^2/s",
                                      "thermal diffusivity"),
                                     ("Pr", "prandtl", "1", "Prandtl number")):
-        lo, hi = f"{name}_lo", f"{name}_hi"
-        properties[name] = out.step(
-            name, f"{lo} + ({hi} - {lo}) * (T_f - T_lo) / (T_hi - T_lo)",
-            {lo: Value(getattr(lower, field), unit, given=True),
-             hi: Value(getattr(upper, field), unit, given=True), **row_T},
-            getattr(air, field), unit, label="Air at the film temperature, " + item,
-            source=AIR_TABLE_SOURCE, group=GROUP_AIR, item=item)
+        # A table look-up: a statement with the two rows it lies between.
+        properties[name] = out.statement(
+            name, "interpolated between {lo} at {T_lo} and {hi} at {T_hi}",
+            getattr(air, field), unit,
+            values={"lo": Value(getattr(lower, field), unit, given=True),
+                    "hi": Value(getattr(upper, field), unit, given=True),
+                    "T_lo": row_T["T_lo"], "T_hi": row_T["T_hi"]},
+            label="Air at the film temperature, " + item, source=AIR_TABLE_SOURCE,
+            group=GROUP_AIR, item=item)
     Ra = out.step("Ra", f"g * (1 / T_f) * abs(T_s - T_a) * {D} ** 3 / (nu * alpha)",
                   {"g": Value(STANDARD_GRAVITY, "m/s^2", given=True), "T_f": T_f, "T_s": T_s,
                    "T_a": T_a, D: D_n, "nu": properties["nu"],

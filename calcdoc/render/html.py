@@ -12,6 +12,7 @@ Anchors are stable and readable: a block is ``SHEET.block`` and a result ``SHEET
 
 from __future__ import annotations
 
+import ast
 import base64
 import re
 from pathlib import Path
@@ -23,8 +24,10 @@ from markupsafe import Markup, escape
 
 from calcdoc import __version__
 from calcdoc.data import Value
-from calcdoc.render.math import mathml, pdf_math, split_formula
+from calcdoc.expressions import CONSTANTS, parse_expression, symbol_latex, to_latex
+from calcdoc.render.math import formula_width_pt, mathml, pdf_math, split_formula
 from calcdoc.render.plots import draw
+from calcdoc.render.numbers import pretty_unit, pretty_written
 from calcdoc.render.printed import PrintedStep, fill, print_check, print_value
 from calcdoc.provenance import values_to_confirm
 from calcdoc.references import PROJECT, PUBLISHED, split
@@ -46,7 +49,7 @@ PRELIMINARY = "PRELIMINARY — NOT FOR CONSTRUCTION"
 
 # Width of the right-hand side of a formula step before it is broken [pt]: about two thirds of
 # the A4 text width, so that symbol, '=' and a long sum still read as one line of working.
-STEP_WIDTH_PT = 360.0
+STEP_WIDTH_PT = 290.0
 
 _ALLOWED_TAGS = {"p", "em", "strong", "code", "pre", "ul", "ol", "li", "blockquote", "a", "br",
                  "h3", "h4", "h5", "table", "thead", "tbody", "tr", "th", "td", "sub", "sup",
@@ -87,8 +90,11 @@ class Citations:
         self.uses: dict[int, list[str]] = {}
         self.project: dict[str, list[str]] = {}
 
-    def cite(self, source, used_in: str = "") -> dict | None:
-        """Return how to print a source where it is used: {"text", "refs": [{"n", "where"}]}."""
+    def cite(self, source, used_in: str = "", project: bool = True) -> dict | None:
+        """Return how to print a source where it is used: {"text", "refs": [{"n", "where"}]}.
+
+        ``project`` False: a library's own words (a material's typical value), printed beside
+        but not listed as the project's information."""
         parts = split(source) if source else []
         if not parts:
             return None
@@ -103,7 +109,7 @@ class Citations:
                 refs.append({"n": n, "where": part.where})
             else:
                 text.append(part.text)
-                if part.kind == PROJECT:
+                if part.kind == PROJECT and project:
                     uses = self.project.setdefault(part.text, [])
                     if used_in and used_in not in uses:
                         uses.append(used_in)
@@ -141,62 +147,364 @@ def _relation(relation: str) -> str:
     return "≤" if relation == "at_most" else "≥"
 
 
+def _working_lines(segments: list[str], width: float) -> list[str]:
+    """Pack the parts of a line of working ('formula', '= numbers', '= result') into lines no
+    wider than ``width``: as many parts on a line as fit, a long part broken on its own."""
+    lines: list[str] = []
+    current = ""
+    for segment in segments:
+        trial = f"{current} {segment}".strip()
+        if current and not _fits(trial, width):
+            lines.append(current)
+            current = segment
+        else:
+            current = trial
+        if not _fits(current, width):
+            pieces = split_formula(current, width)
+            lines.extend(pieces[:-1])
+            current = pieces[-1]
+    if current:
+        lines.append(current)
+    return lines
+
+
+def _fits(latex: str, width: float) -> bool:
+    return formula_width_pt(latex) <= width
+
+
+def _fitted(math, latex: str, width: float) -> Markup:
+    """A line of working that cannot be broken (a wide fraction) and is wider than its column,
+    set smaller to fit it (down to two thirds of its size) instead of running over."""
+    wide = formula_width_pt(latex)
+    shown = math(latex)
+    if wide <= width:
+        return shown
+    scale = max(width / wide, 0.66)
+    return Markup(f'<span class="fit" style="font-size: {100 * scale:.0f}%">{shown}</span>')
+
+
 def _step_view(step: PrintedStep, math) -> dict:
-    """Return a step as a checker writes it: symbol = formula = numbers = result, one per line;
-    a statement says what was done and gives its result."""
-    rows = []
+    """Return a step as a checker writes it, on one line where it fits: symbol = formula =
+    numbers = result; a statement says what was done and gives its result."""
     if step.expr is not None:
-        for kind, latex in (("formula", step.latex_formula),
-                            ("substituted", step.latex_substituted),
-                            ("result", step.latex_result)):
-            if not latex or any(latex == r["latex"] for r in rows):
-                continue
-            lines = split_formula("= " + latex, STEP_WIDTH_PT)
-            rows.append({"kind": kind, "latex": latex, "lines": [math(line) for line in lines]})
+        segments = []
+        for latex in (step.latex_formula, step.latex_substituted, step.latex_result):
+            if latex and ("= " + latex) not in segments:
+                segments.append("= " + latex)
     else:
-        rows.append({"kind": "result", "latex": step.latex_result,
-                     "lines": [math("= " + step.latex_result)]})
+        segments = ["= " + step.latex_result]
+    lines = _working_lines(segments, STEP_WIDTH_PT)
+    rows = [{"kind": "working", "lines": [_fitted(math, line, STEP_WIDTH_PT) for line in lines]}]
     return {"symbol": math(step.latex_symbol), "rows": rows, "label": step.label,
             "statement": step.statement or "", "display": "", "name": step.name,
             "group": step.group, "item": step.item,
-            "alt": " = ".join([step.latex_symbol] + [r["latex"] for r in rows])}
+            "alt": " ".join([step.latex_symbol] + segments)}
+
+
+_INDEXED = re.compile(r"^(?P<base>[A-Za-z][A-Za-z_]*?)_?(?P<index>\d+)$")
+_OFFSETS = {0: "_j", -1: "_jm", 1: "_jp"}
+
+
+def _generic_formula(steps: list[PrintedStep]) -> str | None:
+    """Return the formula of a group of steps with the item's index as j ('R_j = d_j /
+    lambda_j', 'θ_j = θ_{j-1} − q R_j'), or None when the rows do not share one formula."""
+    def index_of(name: str) -> tuple[str, int] | None:
+        match = _INDEXED.match(name)
+        return (match["base"], int(match["index"])) if match else None
+
+    shapes = set()
+    for row, step in enumerate(steps, start=1):
+        own = index_of(step.name)
+        own_index = own[1] if own else row
+        names: dict[str, str] = {}
+        for name in [step.name] + list(step.values):
+            found = index_of(name)
+            if found is None:
+                names[name] = name
+                continue
+            offset = found[1] - own_index
+            if offset not in _OFFSETS:
+                return None
+            names[name] = found[0].rstrip("_") + _OFFSETS[offset]
+        shapes.add((names[step.name], _rename(step.expr, names)))
+    if len(shapes) != 1:
+        return None
+    name, expr = shapes.pop()
+    symbols = steps[0].symbols
+    left = symbols.get(name) or _generic_symbol(name)
+    return f"{left} = " + to_latex(parse_expression(expr),
+                                   lambda n: symbols.get(n) or _generic_symbol(n))
+
+
+def _rename(expr: str, names: dict) -> str:
+    tree = ast.parse(expr, mode="eval")
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Name) and node.id in names:
+            node.id = names[node.id]
+    return ast.unparse(tree)
+
+
+def _generic_symbol(name: str) -> str:
+    """The symbol of a name with the item's index: 'R_j' → R_{j}, 'theta_jm' → θ_{j-1}."""
+    for suffix, index in (("_jm", "j-1"), ("_jp", "j+1"), ("_j", "j")):
+        if name.endswith(suffix) and len(name) > len(suffix):
+            base = symbol_latex(name[:-len(suffix)])
+            if base.endswith("}") and "_{" in base:
+                return base[:-1] + "," + index + "}"
+            return base + "_{" + index + "}"
+    if name in CONSTANTS:
+        return CONSTANTS[name][2]
+    return symbol_latex(name)
+
+
+def _group_rows(run: list[PrintedStep], math, cites, key: str, width: float) -> list[dict]:
+    rows = []
+    for s in run:
+        segments = ([f"= {s.latex_substituted}", f"= {s.latex_result}"]
+                    if s.expr else [f"= {s.latex_result}"])
+        rows.append({"item": s.item or s.label, "symbol": math(s.latex_symbol),
+                     "working": [_fitted(math, line, width)
+                                 for line in _working_lines(segments, width)],
+                     "formula": None, "statement": s.statement or "",
+                     "cite": cites.cite(s.source, key, project=False)})
+    return rows
+
+
+def _cycles(run: list[PrintedStep]) -> list[list[PrintedStep]] | None:
+    """Split steps that alternate between several groups item by item (D_1, R_1, D_2, R_2)
+    into one cycle per item, or None when they do not."""
+    first = run[0].group
+    width = next((k for k in range(1, len(run)) if run[k].group == first), len(run))
+    if width < 2 or len(run) % width or len(run) // width < 2:
+        return None
+    pattern = [s.group for s in run[:width]]
+    cycles = [run[k:k + width] for k in range(0, len(run), width)]
+    for cycle in cycles:
+        if [s.group for s in cycle] != pattern or len({s.item for s in cycle}) != 1:
+            return None
+    return cycles
+
+
+def _once_per_sheet(steps: list[dict], printed: dict, key: str, links) -> list[dict]:
+    """Working that a sheet has already printed, word for word and number for number, in an
+    earlier block (the same openings' emissive powers in three blocks) is referred to, not
+    printed again."""
+    out = []
+    for view in steps:
+        if view.get("table"):
+            signature = ("table", view.get("group"), repr([(r["item"], r["working"],
+                                                            r["statement"]) for r in
+                                                           view.get("rows", [])]),
+                         repr(view.get("columns")))
+        else:
+            signature = ("step", view["label"], repr(view["rows"]), view["statement"])
+        if signature in printed:
+            earlier = printed[signature]
+            out.append({"table": False, "label": view.get("label") or view.get("group"),
+                        "rows": [], "symbol": "", "statement": "", "cite": None,
+                        "same_as": earlier, "same_href": links.anchor(earlier)})
+            continue
+        printed[signature] = key
+        out.append(view)
+    return out
+
+
+def _shared_statement(run: list[PrintedStep]) -> str | None:
+    """The words of statements a group shares, with each named place shown by its name (the
+    rows then give the values): None when the rows' words differ."""
+    templates = {s.template for s in run}
+    if len(templates) != 1 or None in templates or not run[0].filled:
+        return None
+    return re.sub(r"\{(\w+)\}", lambda m: m.group(1).replace("_", " "), run[0].template)
+
+
+def _steps_view(printed: list[PrintedStep], math, cites, key: str,
+                formula_kind: bool = False) -> list[dict]:
+    """Return the block's steps for the page: single steps, and runs of steps that apply one
+    formula to each item of a list as one table (the formula once, a row per item); formulas
+    applied item by item in turn (a diameter, then a resistance, for each layer) are one
+    table with a column for each."""
+    out: list[dict] = []
+    i = 0
+    while i < len(printed):
+        step = printed[i]
+        j = i + 1
+        while step.group and j < len(printed) and printed[j].group:
+            j += 1
+        run = printed[i:j] if step.group else [step]
+        cycles = _cycles(run) if len(run) > 2 else None
+        if cycles is not None:
+            columns = []
+            for k in range(len(cycles[0])):
+                members = [cycle[k] for cycle in cycles]
+                header = _generic_formula(members) if all(s.expr for s in members) else None
+                columns.append({"group": members[0].group,
+                                "header": math(header) if header else None,
+                                "rows": _group_rows(members, math, cites, key,
+                                                    STEP_WIDTH_PT / len(cycles[0]) - 40)})
+            out.append({"table": True, "multi": True, "columns": columns,
+                        "items": [cycle[0].item for cycle in cycles],
+                        "group": " and ".join(c["group"] for c in columns)})
+            i = j
+            continue
+        j = i + 1
+        if step.group:
+            while j < len(printed) and printed[j].group == step.group:
+                j += 1
+        run = printed[i:j]
+        if step.group and len(run) > 1:
+            header = _generic_formula(run) if all(s.expr for s in run) else None
+            rows = _group_rows(run, math, cites, key, STEP_WIDTH_PT - 85)
+            shared_words = _shared_statement(run) if not any(s.expr for s in run) else None
+            if shared_words:  # the words once; each row its values
+                for r, s in zip(rows, run):
+                    r["statement"] = "; ".join(f"{k.replace('_', ' ')} {v}"
+                                               for k, v in s.filled.items() if v != r["item"])
+            if header is None:
+                for r, s in zip(rows, run):
+                    r["formula"] = math(s.latex_formula) if s.expr else None
+            common = rows[0]["cite"] if all(r["cite"] == rows[0]["cite"] for r in rows) else None
+            if common:
+                for r in rows:
+                    r["cite"] = None
+            out.append({"table": True, "multi": False, "group": step.group, "rows": rows,
+                        "cite": common, "header": math(header) if header else None,
+                        "words": shared_words, "statements": not any(s.expr for s in run)})
+        else:
+            for s in run:
+                view = _step_view(s, math)
+                # the engineer's own formula cites project papers; a kind's working cites
+                # standards, statements and library values
+                view["cite"] = cites.cite(s.source, key, project=formula_kind)
+                view["table"] = False
+                out.append(view)
+        i = j
+    return out
 
 
 def _input_view(r, block, cites, links, sig: int, system: str) -> dict:
+    printed = None
     if r.shown is not None:
         display = fill(r.shown, sig, system)
     elif r.origin in ("material",) or isinstance(r.si, str):
         display = str(r.si)
     elif isinstance(r.si, (int, float)):
-        display = print_value(r.value(), sig, system).text
+        printed = print_value(r.value(), sig, system)
+        display = printed.text
     else:
         display = str(r.written)
     written = r.written
     if r.origin == "named" and r.ref:
         written = r.ref
-    return {"path": r.path, "meaning": r.meaning, "display": display,
+    # "As written" only where it says something the value column does not.
+    shown_written = pretty_written(written) if isinstance(written, str) else None
+    if r.origin in ("given", "named") and (shown_written == display or written == display):
+        written = ""
+    return {"path": r.path, "name": r.path.rsplit(".", 1)[-1], "meaning": r.meaning,
+            "display": display, "printed": printed,
             "numeric": bool(_NUMERIC.match(str(display))), "written": written,
             "origin": r.origin, "ref": r.ref if r.origin == "ref" else None,
             "ref_href": links.anchor(_ref_key(r.ref, block)) if r.origin == "ref" else None,
-            "cite": cites.cite(r.source, block.key) if r.origin != "ref" else None,
-            "source": r.source, "item": r.item,
+            "cite": cites.cite(r.source, block.key, project=r.origin not in (
+                "material", "named", "default")) if r.origin != "ref" else None,
+            "source": r.source, "item": r.item, "loc": r.loc,
             "where": f"{r.loc.in_project}:{r.loc.line}" if r.loc and r.loc.line else ""}
 
 
+_LIST_PATH = re.compile(r"^(?P<list>[A-Za-z_]\w*)\[(?P<index>\d+)\]\.(?P<field>.+)$")
+
+
+def _inputs_view(rows: list[dict], block_key: str, shared: dict) -> dict:
+    """Split a block's input rows into scalar rows and one table per list input: a row per
+    item named by its own name, a column per field with the unit in the header where every
+    cell shares it. A table the sheet already printed for another block is not printed again:
+    ``shared`` maps each table's written location to the block that printed it."""
+    scalars, tables = [], {}
+    for row in rows:
+        match = _LIST_PATH.match(row["path"])
+        if not match or row["item"] is None:
+            scalars.append(row)
+            continue
+        table = tables.setdefault(match["list"], {"name": match["list"], "items": {},
+                                                  "fields": []})
+        # a record inside an item (a layer's bridge) is one cell: its fields joined
+        field_name = match["field"].split(".", 1)[0]
+        if field_name not in table["fields"]:
+            table["fields"].append(field_name)
+        item = table["items"].setdefault(int(match["index"]), {"name": row["item"],
+                                                                "cells": {}, "cites": []})
+        if field_name in item["cells"]:  # a second field of a record: join it to the cell
+            cell = dict(item["cells"][field_name])
+            cell.update(display=f"{cell['display']}; {row['display']}", printed=None,
+                        numeric=False)
+            item["cells"][field_name] = cell
+        else:
+            item["cells"][field_name] = row
+        # a library material's source is in the materials appendix; the row cites the rest
+        if row["cite"] and row["origin"] != "material" and row["cite"] not in item["cites"]:
+            item["cites"].append(row["cite"])
+    views = []
+    for table in tables.values():
+        locations = tuple(str(c["loc"]) for item in table["items"].values()
+                          for c in item["cells"].values())
+        if locations in shared:
+            views.append({"name": table["name"], "shared_with": shared[locations]})
+            continue
+        shared[locations] = block_key
+        columns = []
+        for field_name in table["fields"]:
+            cells = [item["cells"].get(field_name) for item in table["items"].values()]
+            units = {c["printed"].unit for c in cells if c and c["printed"] is not None}
+            numeric = all(c is None or c["printed"] is not None for c in cells)
+            unit = units.pop() if numeric and len(units) == 1 else None
+            columns.append({"field": field_name, "title": field_name.replace(".", " ")
+                            .replace("_", " "), "unit": pretty_unit(unit) if unit else "",
+                            "bare": bool(unit)})
+        items = []
+        for item in table["items"].values():
+            cells = []
+            for column in columns:
+                cell = item["cells"].get(column["field"])
+                if cell is None:
+                    cells.append({"text": "—", "numeric": False, "ref_href": None})
+                else:
+                    text = cell["printed"].number if column["bare"] else cell["display"]
+                    cells.append({"text": text, "numeric": cell["numeric"],
+                                  "ref_href": cell["ref_href"], "ref": cell["ref"]})
+            items.append({"name": item["name"], "cells": cells, "cites": item["cites"]})
+        first = items[0]["cites"] if items else []
+        common = first if items and all(i["cites"] == first for i in items) else []
+        views.append({"name": table["name"], "title": table["name"].replace("_", " "),
+                      "columns": columns, "entries": items, "shared_with": None,
+                      "common_cites": common})
+    return {"scalars": scalars, "tables": views}
+
+
 def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: int,
-                system: str, figures) -> dict:
+                system: str, figures, shared: dict) -> dict:
     out = block.output
     key = block.key
     # Citations are numbered in reading order: method, inputs, assumptions, steps, warnings, checks.
     method = [c for c in (cites.cite(ref, key) for ref in block.kind.references) if c]
     inputs = [_input_view(r, block, cites, links, sig, system) for r in block.inputs]
-    notes = [{"text": fill(n["text"], sig, system), "cite": cites.cite(n.get("source", ""), key)}
-             for n in out.notes]
-    steps = []
-    for s in block.printed_steps(sig, system):
-        view = _step_view(s, math)
-        view["cite"] = cites.cite(s.source, key)
-        steps.append(view)
+    input_tables = _inputs_view(inputs, key, shared)
+    notes, repeated = [], []
+    printed_notes = shared.setdefault("notes", {})  # note → the block of the sheet that has it
+    for n in out.notes:
+        text = fill(n["text"], sig, system)
+        if (text, str(n.get("source", ""))) in printed_notes:
+            repeated.append(printed_notes[text, str(n.get("source", ""))])
+            continue
+        printed_notes[text, str(n.get("source", ""))] = key
+        notes.append({"text": text, "cite": cites.cite(n.get("source", ""), key), "href": None})
+    for earlier in dict.fromkeys(repeated):  # said once per sheet, then referred to
+        count = repeated.count(earlier)
+        notes.append({"text": f"As for {earlier}: {count} more statement"
+                      f"{'s' if count != 1 else ''} of method and assumptions.", "cite": None,
+                      "href": links.anchor(earlier)})
+    steps = _once_per_sheet(_steps_view(block.printed_steps(sig, system), math, cites, key,
+                                        block.kind.open_results),
+                            shared.setdefault("steps", {}), key, links)
     results = []
     for name, r in out.results.items():
         value = out.value_of(name)
@@ -244,11 +552,12 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
     for fig in drawn:
         item = {"key": fig.key, "caption": fig.caption, "svg": Markup(fig.svg),
                 "img": _svg_data_img(fig.svg, fig.caption), "block": key,
-                "block_href": links.anchor(key)}
+                "block_href": links.anchor(key), "half": fig.half}
         # Material-law plots belong to the materials appendix, not to the block.
         (law_figures if fig.appendix else block_figures).append(item)
     return {"key": key, "id": block.id, "title": block.spec.title, "kind": block.kind.name,
             "kind_title": block.kind.title, "method": method, "inputs": inputs,
+            "input_scalars": input_tables["scalars"], "input_tables": input_tables["tables"],
             "steps": steps, "results": results, "checks": checks, "notes": notes,
             "warnings": warnings, "figures": block_figures, "law_figures": law_figures,
             "caution": block.kind.caution,
@@ -280,7 +589,9 @@ def _materials_view(package, cites: "Citations", links) -> list[dict]:
         rows.append({"name": name, "title": entry.get("title", name),
                      "properties": properties, "law": entry.get("law", ""),
                      "file": entry.get("file", ""),
-                     "cite": [cites.cite(entry.get("source", ""), k) for k in used[name]][0],
+                     "cite": [cites.cite(entry.get("source", ""), k, project=name in
+                                          package.project.project_materials)
+                              for k in used[name]][0],
                      "to_confirm": any(c.get("confirmed") is False
                                        for c in entry.get("sources", {}).values()),
                      "used_in": [{"key": k, "href": links.anchor(k)} for k in used[name]]})
@@ -343,7 +654,8 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         comments_on.setdefault(c.on, []).append(item)
     sheets = []
     for index, sheet in enumerate(package.sheets):
-        blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings)
+        shared: dict = {}  # a list input written once and used by several blocks prints once
+        blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings, shared)
                   for b in sheet.blocks]
         spec = sheet.spec
         signoff = _signoff_view(spec.signoff, current)
@@ -363,6 +675,8 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
             "comment_count": len(all_comments),
             "open_comments": sum(1 for c in all_comments if c["status"] == "open"),
             "checked_current": "checked" in signoff and signoff["checked"]["current"],
+            # the caution of each kind on the sheet, printed once after its blocks
+            "cautions": list(dict.fromkeys(b["caution"] for b in blocks if b["caution"])),
             "index": index,
         })
     for i, sheet in enumerate(sheets):

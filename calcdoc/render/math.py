@@ -37,7 +37,7 @@ LOGGER = logging.getLogger("calcdoc.render")
 # Plain paths instead of <symbol>/<use>: smaller, and nothing for WeasyPrint to resolve by id.
 ziamath.config.svg2 = False
 
-FORMULA_PT = 10.0  # formulas read like 10 pt text beside the 9 pt body of the PDF
+FORMULA_PT = 9.0  # formulas read like 9 pt text beside the 8.5 pt body of the PDF
 _PX_PER_PT = 4.0 / 3.0
 
 _SINGLE_MATHRM = re.compile(r"\\mathrm\{([A-Za-z])\}")

@@ -125,7 +125,7 @@ def format_number(value: float, sig: int = 3) -> str:
     if value == 0:
         return "0"
     magnitude = math.floor(math.log10(abs(value)))
-    if magnitude >= 7 or magnitude <= -4:
+    if magnitude >= 5 or magnitude <= -4:
         mantissa = f"{value / 10 ** magnitude:.{max(sig - 1, 0)}f}"
         if float(mantissa) in (10.0, -10.0):
             magnitude += 1

@@ -32,6 +32,12 @@ COLOURS = ("#1f3b73", "#b03a2e", "#2e7d32", "#6a1b9a", "#ef6c00", "#455a64")
 # densities draw hundreds of tiny paths per pattern tile)
 HATCHES = ("/", "\\", "|", "-", "x", "+")
 
+FIGURE_HEIGHT_MM = 56.0
+"""Tallest figure drawn [mm]."""
+
+HALF_WIDTH_MM, HALF_HEIGHT_MM = 86.0, 52.0
+"""A graph drawn to stand beside another: half the PDF's text width [mm]."""
+
 PLOT_POINTS = 400
 """Most points drawn for one line; a figure about 160 mm wide shows no more."""
 
@@ -133,6 +139,7 @@ class Drawn:
     caption: str
     svg: str
     appendix: bool = False
+    half: bool = False  # drawn half the text width, to stand beside another
 
 
 def _scale(unit: str, display: str | None):
@@ -168,6 +175,20 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
         return fill(label, sig, system)
 
     width, height = data.size
+    # The package's figures are kept small, so that a block and its figures share a page: a
+    # plan drawn to scale is shrunk as a whole; a graph of curves is drawn half the text width
+    # (its words keep their size), to stand two to a row; a section with bands, full width.
+    # half width: a graph of curves, a section of at most three layers, or a plan drawn to
+    # scale that is at least half again as wide as it is high (it stays legible at 86 mm)
+    half = data.contours is None and len(data.bands) <= 3 and (
+        not data.equal_aspect or width >= 1.5 * height)
+    if data.equal_aspect:
+        scale = min(1.0, FIGURE_HEIGHT_MM / height, (HALF_WIDTH_MM / width) if half else 1.0)
+        width, height = width * scale, height * scale
+    elif half:
+        width, height = HALF_WIDTH_MM, min(height, HALF_HEIGHT_MM)
+    else:
+        height = min(height, FIGURE_HEIGHT_MM)
     with figure(data.key, width, height) as (fig, ax):
         for band in data.bands:
             shade = _SHADES[band.shade % len(_SHADES)]
@@ -236,4 +257,4 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
         if labelled and data.legend:
             ax.legend(loc=data.legend)
         svg = svg_of(fig)
-    return Drawn(data.key, fill(data.caption, sig, system), svg, data.appendix)
+    return Drawn(data.key, fill(data.caption, sig, system), svg, data.appendix, half)

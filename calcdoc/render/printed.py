@@ -166,6 +166,8 @@ class PrintedStep:
     item: str | None = None
     extra_digits: int = 0
     symbols: dict = field(default_factory=dict)
+    template: str | None = None  # a statement's words with its named places
+    filled: dict = field(default_factory=dict)  # each named place as printed
 
     def record(self) -> dict:
         """The step as results.json keeps it (format 2)."""
@@ -192,9 +194,13 @@ def print_step(step: Step, sig: int, system: str = "SI") -> PrintedStep:
     result = print_value(step.result, sig, system)
     symbol = _symbol(step.name, step.symbols)
     if step.expr is None:
+        statement = step.statement
+        filled = {k: _phrase_value(v, sig, system) for k, v in statement.values.items()} \
+            if isinstance(statement, Phrase) else {}
         return PrintedStep(step.name, label, step.source, None, {}, result,
-                           fill(step.statement, sig, system), symbol, "", "", result.latex,
-                           step.yields, step.group, step.item)
+                           fill(statement, sig, system), symbol, "", "", result.latex,
+                           step.yields, step.group, step.item, template=getattr(
+                               statement, "template", None), filled=filled)
     tree = parse_expression(step.expr)
     absolute = {n for n, v in step.operands.items() if v.temperature == ABSOLUTE}
     kelvin = absolute_in_product(tree, absolute)
@@ -231,10 +237,9 @@ def _substituted(name: str, printed: dict) -> str:
         p = printed[name]
         text = p.latex
         return rf"\left({text}\right)" if p.number.startswith("−") else text
-    if name == "pi":
-        return r"\pi"
-    value, unit, _ = CONSTANTS[name]  # in full: a checker re-doing the step uses this number
-    return rf"{number_latex(float(f'{value:.10g}'))}\,{latex_unit(unit)}"
+    # pi and sigma are named constants of the formula language: written as their symbols, as
+    # an engineer writes them (the Stefan–Boltzmann constant's value is stated with the method).
+    return CONSTANTS[name][2]
 
 
 # ----------------------------------------------------------------------------- results and checks
