@@ -546,8 +546,11 @@ class Items(Field):
                 failed = True
                 continue
             name = out[-1].get("name") or out[-1].get("id")
+            item_source = out[-1].get("source") or ""
             for record in ctx.records[first:]:  # item tables name rows by the item's own name
                 record.item = record.item or (str(name) if name else f"{self.name} {i + 1}")
+                if not record.source and item_source:  # the item's source covers its fields
+                    record.source = item_source
         if failed:
             raise _Invalid
         return out

@@ -414,7 +414,7 @@ def _input_view(r, block, cites, links, sig: int, system: str) -> dict:
 _LIST_PATH = re.compile(r"^(?P<list>[A-Za-z_]\w*)\[(?P<index>\d+)\]\.(?P<field>.+)$")
 
 
-def _inputs_view(rows: list[dict], block_key: str, shared: dict) -> dict:
+def _inputs_view(rows: list[dict], block_key: str, shared: dict, kind=None) -> dict:
     """Split a block's input rows into scalar rows and one table per list input: a row per
     item named by its own name, a column per field with the unit in the header where every
     cell shares it. A table the sheet already printed for another block is not printed again:
@@ -474,7 +474,10 @@ def _inputs_view(rows: list[dict], block_key: str, shared: dict) -> dict:
             items.append({"name": item["name"], "cells": cells, "cites": item["cites"]})
         first = items[0]["cites"] if items else []
         common = first if items and all(i["cites"] == first for i in items) else []
+        declared = next((f for f in (kind.inputs if kind else ()) if f.name == table["name"]),
+                        None)
         views.append({"name": table["name"], "title": table["name"].replace("_", " "),
+                      "meaning": declared.meaning if declared is not None else "",
                       "columns": columns, "entries": items, "shared_with": None,
                       "common_cites": common})
     return {"scalars": scalars, "tables": views}
@@ -487,7 +490,7 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
     # Citations are numbered in reading order: method, inputs, assumptions, steps, warnings, checks.
     method = [c for c in (cites.cite(ref, key) for ref in block.kind.references) if c]
     inputs = [_input_view(r, block, cites, links, sig, system) for r in block.inputs]
-    input_tables = _inputs_view(inputs, key, shared)
+    input_tables = _inputs_view(inputs, key, shared, block.kind)
     notes, repeated = [], []
     printed_notes = shared.setdefault("notes", {})  # note → the block of the sheet that has it
     for n in out.notes:
