@@ -397,12 +397,16 @@ def _open_pdf(data: bytes, label: str) -> Archive:
     return Archive(label, attached, results)
 
 
-def evaluate_archive(archive: Archive):
-    """Return the fresh results.json of an archive's inputs, evaluated from memory."""
+def archive_package(archive: Archive):
+    """Return the evaluated package of an archive's inputs, evaluated from memory."""
     from calcdoc.evaluate import evaluate_folder
     from calcdoc.sources import MemoryFiles
-    files = MemoryFiles(archive.inputs, archive.label)
-    return results_document(evaluate_folder(files))
+    return evaluate_folder(MemoryFiles(archive.inputs, archive.label))
+
+
+def evaluate_archive(archive: Archive):
+    """Return the fresh results.json of an archive's inputs, evaluated from memory."""
+    return results_document(archive_package(archive))
 
 
 def verify(path: Path, notes: list[str] | None = None) -> list[str]:
@@ -428,22 +432,9 @@ def verify(path: Path, notes: list[str] | None = None) -> list[str]:
     return lines
 
 
-def diff(old: Path, new: Path) -> list[str]:
-    """Return what changed between two builds (folders or PDFs): input files, results, checks."""
-    a, b = open_archive(old), open_archive(new)
-    lines = []
-    oi = {n: sha256(d) for n, d in a.inputs.items()}
-    ni = {n: sha256(d) for n, d in b.inputs.items()}
-    for name in sorted(set(oi) | set(ni)):
-        if name not in oi:
-            lines.append(f"+ input {name}")
-        elif name not in ni:
-            lines.append(f"- input {name}")
-        elif oi[name] != ni[name]:
-            lines.append(f"~ input {name} changed")
-    old_rev = a.results["project"].get("revision")
-    new_rev = b.results["project"].get("revision")
-    if old_rev != new_rev:
-        lines.append(f"~ revision: {old_rev} → {new_rev}")
-    lines.extend(compare_results(a.results, b.results))
-    return lines
+def diff(old: Path, new: Path):
+    """Return what changed between two builds (folders or PDFs), as a revision note
+    (:class:`calcdoc.changes.Changes`): both are re-evaluated from their archived inputs."""
+    from calcdoc.changes import compare_packages
+    return compare_packages(archive_package(open_archive(old)),
+                            archive_package(open_archive(new)))

@@ -71,8 +71,12 @@ def check_output_folder(out_dir: Path) -> None:
 
 
 def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool = True,
-          final: bool = False) -> BuildReport:
-    """Build the package; raise InputErrors (bad input) or FinalRefused (--final refused)."""
+          final: bool = False, previous: str | Path | None = None) -> BuildReport:
+    """Build the package; raise InputErrors (bad input) or FinalRefused (--final refused).
+
+    ``previous`` is the build (folder or PDF) of the previous issued revision: every input,
+    result and check changed since then is marked with the current revision in the margin,
+    and the changes are listed under the current revision on the cover."""
     timings: dict[str, float] = {}
     t0 = time.perf_counter()
     project_dir = Path(project_dir)
@@ -90,6 +94,11 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         reasons = final_refusals(package)
         if reasons:
             raise FinalRefused(reasons)
+    changes = None
+    if previous is not None:
+        from calcdoc.archive import archive_package, open_archive
+        from calcdoc.changes import compare_packages
+        changes = compare_packages(archive_package(open_archive(Path(previous))), package)
 
     try:
         out.parent.mkdir(parents=True, exist_ok=True)
@@ -107,14 +116,14 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         results_text = dumps(results_document(package))
         (tmp / "results.json").write_text(results_text, encoding="utf-8")
         drawings = Drawings(project.precision, project.units)
-        render_site(package_view(package, "site", drawings), tmp)
+        render_site(package_view(package, "site", drawings, changes), tmp)
         timings["html"] = time.perf_counter() - t
         if pdf:
             t = time.perf_counter()
             from calcdoc.render.pdf import write_pdf  # WeasyPrint loads only when a PDF is made
             work = tmp / "assets"
             (work / "style.css").write_text((TEMPLATES / "style.css").read_text("utf-8"), "utf-8")
-            html = render_package_html(package_view(package, "pdf", drawings))
+            html = render_package_html(package_view(package, "pdf", drawings, changes))
             attachments = sorted(inputs.items()) + [("results.json", results_text.encode())]
             write_pdf(html, work, tmp / "package.pdf", attachments, project.revision.date,
                       digest_seed=results_text)

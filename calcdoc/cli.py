@@ -34,7 +34,8 @@ def _print_errors(errors) -> None:
 
 def cmd_build(args) -> int:
     from calcdoc.build import build
-    report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final)
+    report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final,
+                   previous=args.previous)
     failed = [c for s in report.package.sheets for c in s.checks if not c.passed]
     times = ", ".join(f"{k} {v:.2f} s" for k, v in report.timings.items())
     print(f"built {report.out_dir} ({len(report.files)} files; {times})")
@@ -289,12 +290,15 @@ def cmd_sign(args) -> int:
 
 def cmd_diff(args) -> int:
     from calcdoc.archive import diff
-    lines = diff(Path(args.old), Path(args.new))
-    for line in lines:
-        print(line)
-    if not lines:
-        print("no differences in inputs, results or checks")
-    return 1 if lines else 0
+    changes = diff(Path(args.old), Path(args.new))
+    if args.json:
+        print(json.dumps(changes.record(), indent=1, ensure_ascii=False))
+    else:
+        for line in changes.lines():
+            print(line)
+        if not changes:
+            print("no differences in inputs, results or checks")
+    return 1 if changes else 0
 
 
 def parser() -> argparse.ArgumentParser:
@@ -306,6 +310,9 @@ def parser() -> argparse.ArgumentParser:
     b.add_argument("project")
     b.add_argument("--out", help="output folder (default build/<project name>)")
     b.add_argument("--no-pdf", action="store_true", help="skip the PDF")
+    b.add_argument("--previous", metavar="BUILD",
+                   help="the build (folder or PDF) of the previous issued revision: mark what "
+                        "changed since")
     b.add_argument("--final", action="store_true",
                    help="refuse unless approved, checked, passing and with no open comment")
     b.set_defaults(func=cmd_build)
@@ -344,6 +351,8 @@ def parser() -> argparse.ArgumentParser:
     d = sub.add_parser("diff", help="what changed between two builds")
     d.add_argument("old")
     d.add_argument("new")
+    d.add_argument("--json", action="store_true",
+                   help="print the changes as JSON: inputs, results and checks lists")
     d.set_defaults(func=cmd_diff)
     return p
 

@@ -90,10 +90,19 @@ def test_diff_names_changed_inputs_and_results(built, tmp_path, capsys):
     assert main(["build", str(root), "--out", str(out2), "--no-pdf"]) == 0
     capsys.readouterr()
     assert main(["diff", str(out), str(out2)]) == 1
-    text = capsys.readouterr().out
-    assert "~ input sheets/f1.yaml changed" in text
-    assert "~ F1.loss.Q: 500.0 → 250.0" in text
-    assert "~ F1.loss.check[Q at_most]: FAILED → passed" in text
+    text = capsys.readouterr().out.splitlines()
+    # the revision note as an engineer writes it: inputs as written, results as printed with
+    # the change in per cent (0.25 × 100 × 10 = 250 W, half of 500 W: −50 %), checks that flip
+    assert text == ["Inputs", "  F1.loss dT: 20 K → 10 K",
+                    "Results", "  F1.loss.Q: 0.500 kW → 0.250 kW (−50 %)",
+                    "Checks", "  check F1.loss.Q at most 0.400 kW: FAILED → passes"]
+    assert main(["diff", str(out), str(out2), "--json"]) == 1
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["inputs"] == [{"key": "F1.loss.given.dT", "what": "F1.loss dT", "old": "20 K",
+                              "new": "10 K"}]
+    assert doc["results"][0]["percent"] == pytest.approx(-50.0)
+    assert doc["checks"][0]["new"] == "passes"
+    assert main(["diff", str(out), str(out)]) == 0
 
 
 def test_check_strict_exits_1_on_a_failed_check(tmp_path, capsys):

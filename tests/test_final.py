@@ -37,9 +37,9 @@ blocks:
     kind: formula
     title: Fabric heat loss
     given:
-      U: 0.25 W/(m^2*K)
+      U: {{value: 0.25 W/(m^2*K), source: Wall type schedule (example)}}
       A: {{value: 100 m^2, source: Drawing A-101 (example)}}
-      dT: 20 K
+      dT: {{value: 20 K, assumption: Design difference for the sizing (example)}}
     steps:
       - {{name: Q, expr: "U * A * dT", unit: W, label: Heat loss}}
     checks:
@@ -178,9 +178,9 @@ blocks:
     title: Wall U-value
     inputs:
       layers:
-        - {name: Insulation, thickness: 100 mm, material: mineral_wool}
-      inside_temperature: 20 degC
-      outside_temperature: -3 degC
+        - {name: Insulation, thickness: 100 mm, material: mineral_wool, source: Detail 1 (example)}
+      inside_temperature: {value: 20 degC, source: Brief (example)}
+      outside_temperature: {value: -3 degC, assumption: Winter design value (example)}
 """
 
 CONFIRMED = """\
@@ -233,3 +233,33 @@ def test_a_confirmation_of_a_value_not_used_is_a_located_error(tmp_path, capsys)
     assert "proj/project.yaml:9:5: error: confirmations.value: confirms a value the package " \
            "does not use or that needs no confirmation" in err
     assert "hint: did you mean 'materials.mineral_wool.conductivity'?" in err
+
+
+def test_final_refuses_an_input_without_source_and_signatures_out_of_order(tmp_path, capsys):
+    # An issued package states where every number comes from, or that it is the engineer's
+    # own assumption; and a sheet is not checked before it was prepared (common practice).
+    sheet = SHEET.format(id="W1", prepared="A. Engineer",
+                         checked="  checked: {by: B. Checker, date: 2026-11-19, rev: C1}",
+                         limit="600 W").replace(
+        "U: {value: 0.25 W/(m^2*K), source: Wall type schedule (example)}",
+        "U: 0.25 W/(m^2*K)")
+    root = tmp_path / "proj"
+    (root / "sheets").mkdir(parents=True)
+    (root / "project.yaml").write_text(PROJECT.format(approver="C. Approver"))
+    (root / "sheets" / "w1.yaml").write_text(sheet)
+    assert main(["build", str(root), "--out", str(tmp_path / "out"), "--no-pdf", "--final"]) == 1
+    reasons = [line.strip()[2:] for line in capsys.readouterr().err.splitlines()
+               if line.strip().startswith("- ")]
+    assert reasons == [
+        "sheet W1 is checked (2026-11-19) before it was prepared (2026-11-20)",
+        "sheet W1: input W1.loss.given.U (0.25 W/(m^2*K)) has no source: write {value, source},"
+        " or {value, assumption} for the engineer's own assumption "
+        "(proj/sheets/w1.yaml:11:10)"]
+    assert not (tmp_path / "out").exists()
+
+
+def test_an_assumption_is_printed_as_one(tmp_path, capsys):
+    root = write(tmp_path / "proj", approver="", sheets=[good_sheet("W1")])
+    assert main(["build", str(root), "--out", str(tmp_path / "out"), "--no-pdf"]) == 0
+    page = (tmp_path / "out" / "sheet-W1.html").read_text("utf-8")
+    assert "Assumption: Design difference for the sizing (example)" in page

@@ -215,6 +215,34 @@ class Field:
         return {"description": self.meaning}
 
 
+_VALUE_KEYS = ("value", "source", "assumption")
+
+
+def value_mapping(node: Node, ctx: "InputContext", path: str, name: str) -> tuple:
+    """Return (value node, source text, origin) of a value written as itself or as
+    ``{value, source}`` or ``{value, assumption}``: an assumption is the engineer's own, stated
+    as such in the package (origin 'assumption'); a value with neither has origin 'given' and
+    no source, which ``build --final`` refuses."""
+    if not node.is_map:
+        return node, "", "given"
+    for key in sorted(set(node.value) - set(_VALUE_KEYS)):
+        ctx.error(node.key_locs[key], path, f"unknown key '{key}'",
+                  "value, source, assumption, ref or named", repr(key),
+                  did_you_mean(key, list(_VALUE_KEYS) + ["ref", "named"]))
+    if "value" not in node.value:
+        ctx.error(node, path, f"'{name}' has no value", "{value: QUANTITY, source: TEXT}",
+                  repr(plain(node)))
+        raise _Invalid
+    if "source" in node.value and "assumption" in node.value:
+        ctx.error(node.key_locs["assumption"], path, "both a source and an assumption",
+                  "a source (where the value comes from) or an assumption (the engineer's "
+                  "own), not both", "both")
+        raise _Invalid
+    words = node.value.get("source") or node.value.get("assumption")
+    text = "" if words is None or words.value is None else str(plain(words))
+    return node.value["value"], text, "assumption" if "assumption" in node.value else "given"
+
+
 def _is_mapping_with(node: Node, key: str) -> bool:
     return node.is_map and key in node.value
 
@@ -351,19 +379,7 @@ class Quantity(Field):
             return self._from_ref(node, ctx, path)
         if _is_mapping_with(node, "named"):
             return self._from_named(node, ctx, path)
-        value_node = node
-        if node.is_map:
-            unknown = set(node.value) - {"value", "source"}
-            for key in sorted(unknown):
-                ctx.error(node.key_locs[key], path, f"unknown key '{key}'",
-                          "value, source, ref or named", repr(key),
-                          did_you_mean(key, ["value", "source", "ref", "named"]))
-            if "value" not in node.value:
-                ctx.error(node, path, f"'{self.name}' has no value",
-                          "{value: QUANTITY, source: TEXT}", repr(plain(node)))
-                raise _Invalid
-            value_node = node.value["value"]
-            source = str(plain(node.value.get("source")) or "")
+        value_node, source, origin = value_mapping(node, ctx, path, self.name)
         if not value_node.is_scalar:
             ctx.error(value_node, path, f"'{self.name}' is not a quantity",
                       f"{self.type_text()}, e.g. '{self.example()}'", repr(plain(value_node)))

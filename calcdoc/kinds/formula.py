@@ -15,8 +15,9 @@ from dataclasses import dataclass
 import pint
 
 from calcdoc.errors import InputError, Location
-from calcdoc.kinds.base import (REQUIRED, ABSOLUTE, DIFFERENCE, Field, FreeMapping, InputRecord,
-                                Items, Kind, Text, _Invalid, did_you_mean)
+from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, REQUIRED, Field, FreeMapping,
+                                InputRecord, Items, Kind, Text, _Invalid, did_you_mean,
+                                value_mapping)
 from calcdoc.located import Node, plain
 from calcdoc.data import Value
 from calcdoc.render.numbers import pretty_written
@@ -249,7 +250,7 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
                   "a name of letters, digits and _ that is not a function or constant",
                   repr(name))
         raise _Invalid
-    source = ""
+    source, origin = "", "given"
     if node.is_map and "ref" in node.value:
         target = ctx.resolve_ref(node.value["ref"], path)
         if target.obj is not None or isinstance(target.value, list):
@@ -274,19 +275,11 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
         text, source = entry["value"], entry.get("source", "")
         value_node = node
     elif node.is_map:
-        for key in node.value:
-            if key not in ("value", "source"):
-                ctx.error(node.key_locs[key], path, f"unknown key '{key}'",
-                          "value, source, ref or named", repr(key),
-                          did_you_mean(key, ["value", "source", "ref", "named"]))
-                raise _Invalid
-        if "value" not in node.value:
-            ctx.error(node, path, f"'{name}' has no value", "{value: QUANTITY, source: TEXT}",
-                      repr(plain(node)))
+        before = len(ctx.errors)
+        value_node, source, origin = value_mapping(node, ctx, path, name)
+        if len(ctx.errors) > before:
             raise _Invalid
-        value_node = node.value["value"]
         text = value_node.value
-        source = str(plain(node.value.get("source")) or "")
     else:
         value_node = node
         text = node.value
@@ -327,7 +320,7 @@ def _given_value(name: str, node: Node, ctx, path: str, key_loc: Location) -> Gi
     written_text = str(text)
     shown_unit = unit_text_of(written_text)
     record = InputRecord(path, name, written_text, value_si, si, shown_unit or None, source,
-                         "named" if node.is_map and "named" in node.value else "given", None,
+                         "named" if node.is_map and "named" in node.value else origin, None,
                          value_node.loc, temperature=temperature, written_unit=shown_unit)
     ctx.records.append(record)
     return Given(q, record.value(), temperature, pretty_written(written_text) or written_text)

@@ -398,15 +398,22 @@ def _input_view(r, block, cites, links, sig: int, system: str) -> dict:
         written = r.ref
     # "As written" only where it says something the value column does not.
     shown_written = pretty_written(written) if isinstance(written, str) else None
-    if r.origin in ("given", "named") and (shown_written == display or written == display):
+    if r.origin in ("given", "named", "assumption") and (shown_written == display or
+                                                          written == display):
         written = ""
-    return {"path": r.path, "name": r.path.rsplit(".", 1)[-1], "meaning": r.meaning,
+    if r.origin == "assumption":  # the engineer's own, said to be so
+        cite = {"text": f"Assumption: {r.source}", "refs": []}
+    elif r.origin == "ref":
+        cite = None
+    else:
+        cite = cites.cite(r.source, block.key, project=r.origin not in (
+            "material", "named", "default"))
+    return {"path": r.path, "name": r.path.rsplit(".", 1)[-1], "meaning": r.meaning, "mark": "",
             "display": display, "printed": printed,
             "numeric": bool(_NUMERIC.match(str(display))), "written": written,
             "origin": r.origin, "ref": r.ref if r.origin == "ref" else None,
             "ref_href": links.anchor(_ref_key(r.ref, block)) if r.origin == "ref" else None,
-            "cite": cites.cite(r.source, block.key, project=r.origin not in (
-                "material", "named", "default")) if r.origin != "ref" else None,
+            "cite": cite,
             "source": r.source, "item": r.item, "loc": r.loc,
             "where": f"{r.loc.in_project}:{r.loc.line}" if r.loc and r.loc.line else ""}
 
@@ -432,7 +439,9 @@ def _inputs_view(rows: list[dict], block_key: str, shared: dict, kind=None) -> d
         if field_name not in table["fields"]:
             table["fields"].append(field_name)
         item = table["items"].setdefault(int(match["index"]), {"name": row["item"],
-                                                                "cells": {}, "cites": []})
+                                                                "cells": {}, "cites": [],
+                                                                "paths": []})
+        item["paths"].append(row["path"])
         if field_name in item["cells"]:  # a second field of a record: join it to the cell
             cell = dict(item["cells"][field_name])
             cell.update(display=f"{cell['display']}; {row['display']}", printed=None,
@@ -470,8 +479,10 @@ def _inputs_view(rows: list[dict], block_key: str, shared: dict, kind=None) -> d
                 else:
                     text = cell["printed"].number if column["bare"] else cell["display"]
                     cells.append({"text": text, "numeric": cell["numeric"],
-                                  "ref_href": cell["ref_href"], "ref": cell["ref"]})
-            items.append({"name": item["name"], "cells": cells, "cites": item["cites"]})
+                                  "ref_href": cell["ref_href"], "ref": cell["ref"],
+                                  "path": cell["path"]})
+            items.append({"name": item["name"], "cells": cells, "cites": item["cites"],
+                          "paths": item["paths"], "mark": ""})
         first = items[0]["cites"] if items else []
         common = first if items and all(i["cites"] == first for i in items) else []
         declared = next((f for f in (kind.inputs if kind else ()) if f.name == table["name"]),
@@ -517,12 +528,12 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
         else:
             display = print_value(value, sig, system).text
         results.append({"name": name, "meaning": r.spec.meaning, "display": display,
-                        "anchor": f"{key}.{name}", "absent": False})
+                        "anchor": f"{key}.{name}", "absent": False, "mark": ""})
     for name, why in out.absent.items():
         spec = out.declared(name)
         results.append({"name": name, "meaning": spec.meaning if spec else "",
                         "display": fill(why, sig, system), "anchor": f"{key}.{name}",
-                        "absent": True})
+                        "absent": True, "mark": ""})
     drawn = figures(block)
     for name, series in out.series.items():
         if name in out.results or name in out.absent:
@@ -543,6 +554,7 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
         seen_anchors.add(anchor)
         shown = print_check(c, sig, system)
         checks.append({"result": c.result, "relation": _relation(c.relation),
+                       "relation_key": c.relation, "mark": "",
                        "value": shown.value, "limit": shown.limit, "margin": shown.margin,
                        "utilisation": shown.utilisation,
                        "passed": c.passed, "note": shown.note, "source": c.source,
@@ -632,7 +644,8 @@ def _signoff_view(signoff: dict, current_rev: str) -> dict:
             for role, s in signoff.items()}
 
 
-def package_view(package, target: str = "site", drawings: "Drawings | None" = None) -> dict:
+def package_view(package, target: str = "site", drawings: "Drawings | None" = None,
+                 changes=None) -> dict:
     """Return the whole package as view data for the templates (``target``: site | pdf)."""
     if target not in ("site", "pdf"):
         raise ValueError(f"target must be site or pdf, got {target!r}")
@@ -660,6 +673,8 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         shared: dict = {}  # a list input written once and used by several blocks prints once
         blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings, shared)
                   for b in sheet.blocks]
+        if changes:
+            _mark_changes(blocks, changes.keys(), current)
         spec = sheet.spec
         signoff = _signoff_view(spec.signoff, current)
         checks = [c for b in blocks for c in b["checks"]]
@@ -727,6 +742,8 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         "materials_href": links.index("materials"),
         "caution": CAUTION,
         "target": target,
+        "changes": changes.groups() if changes else [],
+        "changed_since": changes.old_revision if changes else None,
     }
 
 
@@ -746,6 +763,24 @@ def _confirmation_view(package, links, sig: int, system: str) -> dict:
             confirmed.append({**row, "against": c.against, "by": c.by, "date": c.date})
     return {"values_to_confirm": to_confirm, "confirmed_values": confirmed,
             "values_to_confirm_href": links.index("values-to-confirm")}
+
+
+def _mark_changes(blocks: list[dict], changed: set[str], revision: str) -> None:
+    """Mark each input, result and check that changed since the previous issued revision with
+    the current revision, for the margin."""
+    for b in blocks:
+        for row in b["inputs"]:
+            row["mark"] = revision if f"{b['key']}.{row['path']}" in changed else ""
+        for table in b["input_tables"]:
+            for item in table.get("entries") or []:
+                item["mark"] = revision if any(f"{b['key']}.{p}" in changed
+                                               for p in item["paths"]) else ""
+        for r in b["results"]:
+            r["mark"] = revision if r["anchor"] in changed else ""
+        for c in b["checks"]:
+            c["mark"] = revision if f"{b['key']}.{c['result']}.check.{c['relation_key']}" \
+                in changed else ""
+        b["mark"] = revision if b["key"] in changed else ""
 
 
 def environment() -> jinja2.Environment:

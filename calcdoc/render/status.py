@@ -53,13 +53,28 @@ def signoff_state(signoff: dict, current_rev: str) -> SignoffState:
     return SignoffState(True, f"checked at {current_rev}")
 
 
+_ROLE_ORDER = ("prepared", "checked", "approved")
+
+
+def _order(signoff: dict) -> list[str]:
+    """A sheet is checked on or after it was prepared, and approved on or after it was
+    checked: signatures out of that order are refused with their dates."""
+    problems = []
+    for earlier, later in zip(_ROLE_ORDER, _ROLE_ORDER[1:]):
+        a, b = signoff.get(earlier), signoff.get(later)
+        if a is not None and b is not None and a.date and b.date and b.date < a.date:
+            problems.append(f"is {later} ({b.date}) before it was {earlier} ({a.date})")
+    return problems
+
+
 def final_refusals(package, check_words) -> list[str]:
     """Return every reason the package may not be issued as final (empty: it may).
 
     Final means: the current revision has an approver, every sheet is checked at the current
     revision by someone other than its preparer, every check passes, no review comment is
-    open (FORMAT.md, Command line) and every library value used is confirmed against its
-    printed source. ``check_words(check)`` prints a failed check's value and
+    open (FORMAT.md, Command line), every library value used is confirmed against its printed
+    source, every input has a source or is stated as an assumption, and each sheet is checked
+    on or after it was prepared. ``check_words(check)`` prints a failed check's value and
     limit as the package does."""
     project = package.project
     rev = project.revision
@@ -70,6 +85,15 @@ def final_refusals(package, check_words) -> list[str]:
     for sheet in package.sheets:
         state = signoff_state(sheet.spec.signoff, rev.rev)
         reasons.extend(f"sheet {sheet.id} {problem}" for problem in state.problems)
+        reasons.extend(f"sheet {sheet.id} {problem}" for problem in _order(sheet.spec.signoff))
+        for block in sheet.blocks:
+            for record in block.inputs:
+                if record.origin == "given" and not record.source and isinstance(
+                        record.si, (int, float)) and not isinstance(record.si, bool):
+                    reasons.append(f"sheet {sheet.id}: input {block.key}.{record.path} "
+                                   f"({record.written}) has no source: write {{value, "
+                                   f"source}}, or {{value, assumption}} for the engineer's own "
+                                   f"assumption ({record.loc})")
         for block in sheet.blocks:
             for c in block.checks:
                 if not c.passed:
