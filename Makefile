@@ -10,7 +10,7 @@ PY := $(VENV)/bin/python
 DEMO := projects/cold-store
 SYSTEM_PACKAGES := libpango-1.0-0 libpangoft2-1.0-0 fonts-dejavu-core poppler-utils chromium chromium-driver
 
-.PHONY: demo test bench fuzz system clean
+.PHONY: demo test bench fuzz docs system clean
 
 demo: system $(VENV)/.installed
 	$(VENV)/bin/calcdoc build $(DEMO) --out build/cold-store
@@ -21,6 +21,10 @@ test: system $(VENV)/.installed
 # The fuzz tests of the suite with many more examples, random each run (about 10 minutes).
 fuzz: system $(VENV)/.installed
 	CALCDOC_FUZZ_SCALE=$${CALCDOC_FUZZ_SCALE:-20} $(PY) -m pytest -q -p no:randomly tests/test_fuzz.py
+
+# docs/format.md from the program's declarations (a test checks it is current)
+docs: $(VENV)/.installed
+	$(PY) -m calcdoc.reference docs/format.md
 
 bench: system $(VENV)/.installed
 	$(PY) bench/bench_build.py

@@ -257,7 +257,7 @@ def _checked_results(data: bytes, label: str) -> dict:
     doc = _json(data, label)
     problem = results_problem(doc)
     if problem:
-        raise _refuse(label, "not a calcdoc results.json", "the results contract of FORMAT.md",
+        raise _refuse(label, "not a calcdoc results.json", "the results contract of docs/format.md",
                       problem)
     return doc
 

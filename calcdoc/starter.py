@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime
+import json
 from pathlib import Path
 
 from calcdoc.errors import InputError, InputErrors, Location
@@ -11,6 +12,7 @@ __all__ = ["write_starter", "STARTER_FILES"]
 
 STARTER_FILES = {
     "project.yaml": """\
+# yaml-language-server: $schema=schemas/project.json
 # A starter calculation package. Replace the example values with your project's.
 project:
   number: "00-000"
@@ -28,6 +30,7 @@ units: SI
 precision: 3
 """,
     "sheets/wall.yaml": """\
+# yaml-language-server: $schema=../schemas/sheet.json
 id: W1
 title: External wall, fabric transmittance
 signoff:
@@ -40,18 +43,24 @@ blocks:
     title: Wall transmittance and inside surface condensation
     inputs:
       layers:
-        - {name: Brick outer leaf, thickness: 102.5 mm, material: brick_clay}
-        - {name: Mineral wool, thickness: 100 mm, material: mineral_wool}
-        - {name: Dense block, thickness: 100 mm, material: concrete_block_dense}
-        - {name: Plasterboard, thickness: 12.5 mm, material: gypsum_plasterboard}
-      inside_temperature: 20 degC
-      outside_temperature: -3 degC
-      inside_relative_humidity: 55 %
+        # from the inside (the heated room) outward, as the kind reads them
+        - {name: Plasterboard, thickness: 12.5 mm, material: gypsum_plasterboard,
+           source: Wall detail (example)}
+        - {name: Dense block, thickness: 100 mm, material: concrete_block_dense,
+           source: Wall detail (example)}
+        - {name: Mineral wool, thickness: 100 mm, material: mineral_wool,
+           source: Wall detail (example)}
+        - {name: Brick outer leaf, thickness: 102.5 mm, material: brick_clay,
+           source: Wall detail (example)}
+      inside_temperature: {value: 20 degC, source: Heating design brief (example)}
+      outside_temperature: {value: -3 degC, source: Winter design temperature (example)}
+      inside_relative_humidity: {value: 55 %, assumption: Occupied dwelling (example)}
       area: {value: 85 m^2, source: Elevation drawing (example)}
     checks:
       - {result: U, at_most: 0.35 W/(m^2*K), source: Example energy requirement}
 """,
     "sheets/loss.yaml": """\
+# yaml-language-server: $schema=../schemas/sheet.json
 id: L1
 title: Fabric heat loss
 signoff:
@@ -63,7 +72,7 @@ blocks:
     given:
       U: {ref: W1.wall.U}
       A: {value: 85 m^2, source: Elevation drawing (example)}
-      dT: 23 K
+      dT: {value: 23 K, assumption: "20 °C inside, −3 °C outside (example)"}
     steps:
       - {name: Q, expr: "U * A * dT", unit: W, label: Fabric heat loss}
     checks:
@@ -78,11 +87,18 @@ def write_starter(folder: Path) -> list[Path]:
         raise InputErrors([InputError(Location(str(folder)), "new",
                                       "refusing to write into a folder that is not empty",
                                       "a new or empty folder", "a folder with files")])
+    from calcdoc.schema import project_schema, review_schema, sheet_schema
     today = datetime.date.today().isoformat()
+    files = {name: text.replace("{today}", today) for name, text in STARTER_FILES.items()}
+    # The schemas an editor completes keys from (the comment at the top of each file names
+    # them for YAML language servers); `calcdoc schema` prints them again after an upgrade.
+    for name, made in (("sheet", sheet_schema), ("project", project_schema),
+                       ("review", review_schema)):
+        files[f"schemas/{name}.json"] = json.dumps(made(), indent=1, ensure_ascii=False) + "\n"
     written = []
-    for name, text in STARTER_FILES.items():
+    for name, text in files.items():
         path = folder / name
         path.parent.mkdir(parents=True, exist_ok=True)
-        path.write_text(text.replace("{today}", today), encoding="utf-8")
+        path.write_text(text, encoding="utf-8")
         written.append(path)
     return written

@@ -4,7 +4,7 @@ Computation runs on coherent SI floats; pint is used only here, at the edges. Th
 without ``autoconvert_offset_to_baseunit`` on purpose: that option turns ``W/(m*degC)`` into a value
 274 times too small. Absolute temperatures are split from their number and converted to kelvin
 before any arithmetic; inside a compound unit ``degC`` and ``degF`` are read as per-degree
-differences (FORMAT.md, Values).
+differences (docs/format.md, Values).
 """
 
 from __future__ import annotations

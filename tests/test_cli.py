@@ -1,4 +1,4 @@
-"""The command line: new, kinds, check; exit codes as FORMAT.md states them."""
+"""The command line: new, kinds, check; exit codes as docs/format.md states them."""
 
 import json
 
@@ -73,3 +73,26 @@ def test_sheet_schema_accepts_every_demo_sheet_and_refuses_a_typo(capsys):
     bad = json.loads(json.dumps(yaml.safe_load(sheets[0].read_text()), default=str))
     bad["blocks"][0]["titel"] = bad["blocks"][0].pop("title")
     assert list(validator.iter_errors(bad))
+
+
+def test_format_reference_in_docs_is_current():
+    # docs/format.md is generated from the declarations; regenerate with `make docs`.
+    from pathlib import Path
+    from calcdoc.reference import format_reference
+    committed = (Path(__file__).resolve().parent.parent / "docs" / "format.md").read_text()
+    assert committed == format_reference(), "docs/format.md is out of date: run make docs"
+
+
+def test_starter_lists_layers_inside_outward_and_names_its_schemas(tmp_path):
+    # The starter's wall reads from the heated room outward, as layered_wall declares, so
+    # the first interface temperature is the warm side's (ISO 6946 convention, common practice).
+    import yaml
+    from calcdoc.starter import write_starter
+    write_starter(tmp_path / "p")
+    wall = (tmp_path / "p" / "sheets" / "wall.yaml").read_text()
+    assert wall.startswith("# yaml-language-server: $schema=../schemas/sheet.json")
+    layers = yaml.safe_load(wall)["blocks"][0]["inputs"]["layers"]
+    assert [l["name"] for l in layers][0] == "Plasterboard" and layers[-1]["name"] == \
+        "Brick outer leaf"
+    schema = json.loads((tmp_path / "p" / "schemas" / "sheet.json").read_text())
+    assert schema["$schema"].endswith("2020-12/schema")

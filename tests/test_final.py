@@ -1,6 +1,6 @@
 """`calcdoc build --final`: a package is issued as final only when it is fit to sign.
 
-The rule (FORMAT.md, Command line) is the trade's sign-off practice: the current revision has an
+The rule (docs/format.md, Command line) is the trade's sign-off practice: the current revision has an
 approver, every sheet is checked at that revision by someone other than its preparer (common
 practice: a calculation is never checked by its author), every check passes and no review comment
 is open. A refusal exits 1, lists every reason at once and writes nothing.

@@ -123,7 +123,7 @@ def test_units_convert_through_steps(evaluate):
 
 
 def test_degC_per_degree_inside_compound_given(evaluate):
-    # 0.5 W/(m·°C) is 0.5 W/(m·K) (FORMAT.md, Values); 0.5 × 2 m⁻¹... as a U-like product
+    # 0.5 W/(m·°C) is 0.5 W/(m·K) (docs/format.md, Values); 0.5 × 2 m⁻¹... as a U-like product
     package = evaluate(sheet("      k: 0.5 W/(m*degC)\n      d: 0.1 m",
                              '      - {name: U, expr: "k / d", unit: W/(m^2*K)}'))
     assert package.block("F1.calc").output.results["U"].value == pytest.approx(5.0)

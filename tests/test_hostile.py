@@ -365,7 +365,7 @@ def test_verify_of_results_json_that_is_a_list__exit_2(built, capsys):
     assert main(["verify", "out"]) == 2
     assert capsys.readouterr().err.startswith(
         "out/results.json: error: not a calcdoc results.json (expected the results contract of "
-        "FORMAT.md, got a list at the top)")
+        "docs/format.md, got a list at the top)")
 
 
 def test_diff_of_an_empty_manifest__exit_2(built, capsys):

@@ -157,7 +157,7 @@ def test_layered_wall__resistance_layer_enters_the_sum_directly(evaluate):
 # --- layered_wall: units through the kind ----------------------------------------------------
 
 def test_conductivity_in_w_per_m_degc__is_a_per_kelvin_value(evaluate):
-    # FORMAT.md, Values: inside a compound unit degC is a per-degree difference, so
+    # docs/format.md, Values: inside a compound unit degC is a per-degree difference, so
     # 0.5 W/(m*degC) = 0.5 W/(m*K) (NIST SP 811: a Celsius degree equals a kelvin).
     # Hand calculation: R = 0.1/0.5 = 0.2; R_T = 0.13 + 0.2 + 0.04 = 0.37 m2K/W.
     layers = "        - {name: board, thickness: 100 mm, conductivity: 0.5 W/(m*degC)}"
@@ -300,7 +300,7 @@ def test_surface_humidity__hand_calculation_with_iso13788_surface_resistance(eva
     assert r["dew_point"] - C == pytest.approx(9.3, abs=0.05)             # psychrometric tables
     assert r["condensation_margin"] == pytest.approx(9.092, abs=0.0005)   # hand calculation
     assert r["surface_relative_humidity"] == pytest.approx(0.5538, abs=0.00005)  # hand calc
-    # U is computed with R_si = 0.13, not the condensation resistance (FORMAT.md).
+    # U is computed with R_si = 0.13, not the condensation resistance (docs/format.md).
     assert r["U"] == pytest.approx(0.2708, abs=0.00005)
 
 

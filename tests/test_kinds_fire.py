@@ -1,4 +1,4 @@
-"""The fire_curve and steel_member_heating kinds: inputs as FORMAT.md names them, located errors,
+"""The fire_curve and steel_member_heating kinds: inputs as docs/format.md names them, located errors,
 results against the standards, the fire passed by reference as the curve itself, the working
 printed as steps that re-do from their printed numbers, and figures as data."""
 
@@ -286,7 +286,7 @@ def test_fire_curve__input_of_another_curve_refused_where_it_is_written(errors_o
     assert len(errors) == 1
     assert errors[0].endswith("fc1.yaml:8:23: error: FC1.fire.inputs.opening_factor: input "
                               "'opening_factor' does not apply to curve 'standard' (expected "
-                              "only the inputs of the chosen curve (FORMAT.md, fire_curve), got "
+                              "only the inputs of the chosen curve (docs/format.md, fire_curve), got "
                               "'0.04 m^0.5')")
 
 
@@ -402,7 +402,7 @@ def test_steel_protected__hand_calculation_of_the_first_step_and_the_no_fall_rul
     assert formula.result.si == pytest.approx(-7.66, abs=0.005)
     assert by_name["Delta_theta_a_t"].expr is None and by_name["Delta_theta_a_t"].result.si == 0
     assert by_name["theta_a_1"].result.si == pytest.approx(20.0 + K, abs=1e-9)
-    # Time to θcr by linear interpolation between the two steps either side (FORMAT.md).
+    # Time to θcr by linear interpolation between the two steps either side (docs/format.md).
     series = block.output.series["temperature"]
     j = next(n for n, t in enumerate(series.y) if t >= 500.0 + K)
     t_cr = series.x[j - 1] + 30 * (500.0 + K - series.y[j - 1]) / (series.y[j] - series.y[j - 1])
@@ -576,7 +576,7 @@ def test_fire_curve__stray_free_text_refused_at_the_curve(errors_of):
     assert len(errors) == 1
     assert errors[0].endswith("fc1.yaml:7:14: error: FC1.fire.inputs.points_source: input "
                               "'points_source' does not apply to curve 'standard' (expected "
-                              "only the inputs of the chosen curve (FORMAT.md, fire_curve), got "
+                              "only the inputs of the chosen curve (docs/format.md, fire_curve), got "
                               "'ASTM E119')")
 
 

@@ -1,4 +1,4 @@
-"""The wall_fire_exposure kind: inputs and results of FORMAT.md, defaults with their clauses,
+"""The wall_fire_exposure kind: inputs and results of docs/format.md, defaults with their clauses,
 located errors, and agreement with published limits and closed-form solutions."""
 
 import ast
@@ -76,7 +76,7 @@ def printed_steps(block) -> dict:
 
 def test_slab_120_mm_standard_fire__not_below_en1992_1_2_table_5_8_rei_120(evaluate):
     # EN 1992-1-2:2004 Table 5.8 (from memory): hs = 120 mm for REI 120. Defaults: lower-limit
-    # conductivity, 1.5 % moisture, 2300 kg/m³ (FORMAT.md), 140 K mean rise (EN 1363-1).
+    # conductivity, 1.5 % moisture, 2300 kg/m³ (docs/format.md), 140 K mean rise (EN 1363-1).
     package = evaluate(sheet(CONCRETE_120 + "required_resistance: 120 min\n",
                              "- {result: time_to_insulation, at_least: 120 min}\n"))
     block = package.block("W1.wall")
@@ -150,14 +150,14 @@ def test_defaults_carry_their_clauses(evaluate):
     assert "§2.2(2)" in records["exposed_emissivity"].source
     notes = notes_of(block)
     assert "lower-limit conductivity, moisture content 1.5 %" in notes
-    # the run is stated with its mesh, step and the halving check (FORMAT.md)
+    # the run is stated with its mesh, step and the halving check (docs/format.md)
     run = printed_steps(block)["delta_halving", None]
     assert "cells per layer 60 of 2.00 mm, time step 10 s" in run.statement
     assert "Halving both (cells per layer 120, time step 5 s) changes the time to insulation" \
         in run.statement
     assert "(limit 1 %)" in run.statement
     assert block.output.steps[[s.name for s in block.output.steps].index(
-        "delta_halving")].result.si < 0.01  # FORMAT.md: under 1 %
+        "delta_halving")].result.si < 0.01  # docs/format.md: under 1 %
     assert block.kind.caution.startswith("This calculation supports, and does not replace")
 
 
@@ -185,7 +185,7 @@ def test_parametric_fire__decay_limit_200_k_after_the_peak_en1991_1_2_2_1_3(eval
 
 
 def test_not_reached__absent_and_at_least_check_within_duration_passes(evaluate):
-    # FORMAT.md (Checks): a time not reached is absent; an at_least check passes when the duration
+    # docs/format.md (Checks): a time not reached is absent; an at_least check passes when the duration
     # covers the limit, and is an input error otherwise.
     package = evaluate(sheet(CONCRETE_120.replace("180 min", "60 min"),
                              "- {result: time_to_insulation, at_least: 60 min}\n"))
@@ -384,7 +384,7 @@ def test_moisture_above_3_percent__spalling_warning_and_the_3_percent_peak(evalu
 
 
 def test_insulation_rise_in_degc__refused_as_an_absolute_temperature(errors_of):
-    # FORMAT.md (Values): a difference only in K, delta_degC or delta_degF.
+    # docs/format.md (Values): a difference only in K, delta_degC or delta_degF.
     errors = errors_of(sheet(CONCRETE_120 + "insulation_rise: 140 degC\n"))
     assert len(errors) == 1 and "insulation_rise" in errors[0]
 
@@ -414,7 +414,7 @@ def test_bad_wall_inputs__one_located_error_each(errors_of, inputs, words):
 
 
 def test_fire_yaml__entries_cited_and_laws_registered():
-    # Every library material carries a source (FORMAT.md); law entries name a registered law,
+    # Every library material carries a source (docs/format.md); law entries name a registered law,
     # and both concrete names share EN 1992-1-2 §3.3 (thermal aliases).
     files = [p for p in builtin_material_files() if p.name == "fire.yaml"]
     collector = Collector()

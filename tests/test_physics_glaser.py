@@ -1,7 +1,7 @@
 """Interstitial condensation by the ISO 13788:2012 monthly (Glaser) method.
 
 Check values are hand calculations worked in the comments from the method's equations as
-FORMAT.md (interstitial_condensation) states them — conduction in series, the Annex E saturation
+docs/format.md (interstitial_condensation) states them — conduction in series, the Annex E saturation
 pressure, the tautest line and g = δ0·[(p_l − p_sat)/Δs_l − (p_sat − p_r)/Δs_r] with
 δ0 = 2.0e-10 kg/(m·s·Pa) — each rounded as printed and asserted to that precision. Saturation
 pressures above 0 °C are cross-checked against IAPWS-92 (chemicals.air.iapws92_Psat). The walls
@@ -71,7 +71,7 @@ def test_wet_interface_in_a_warm_month__evaporates_at_hand_calculated_rate():
     # Hand calculation, wall A holding moisture at the interface, outside 15 °C, 80 %:
     #   θ_1 = 20 − (5/2.77)·2.63 = 15.2527 °C;  p_sat,1 = 610.5·exp(17.269·15.2527/252.5527)
     #       = 1732.3 Pa (Annex E);  p_e = 0.8·p_sat(15 °C) = 0.8·1704.4 = 1363.5 Pa
-    #   the wet interface is held at saturation (FORMAT.md):
+    #   the wet interface is held at saturation (docs/format.md):
     #   g = 2.0e-10·[(1168.48 − 1732.33)/0.1 − (1732.33 − 1363.53)/2.0]
     #     = 2.0e-10·[−5638.6 − 184.40] = −1.1646e-6 kg/(m²·s), evaporation
     month = vapour_profile(*WALL_A, 20.0 + C, 0.5, 15.0 + C, 0.8, wet_interfaces=[1])
@@ -142,7 +142,7 @@ def test_two_condensation_interfaces__hand_calculation_of_both_rates():
 
 @pytest.mark.parametrize("seed", range(20))
 def test_profile__is_the_tautest_line_under_saturation_by_its_definition(seed):
-    # FORMAT.md's definition, checked on invented random walls and climates: the line never
+    # docs/format.md's definition, checked on invented random walls and climates: the line never
     # exceeds saturation between the fixed points; between them it is convex (slopes never
     # decrease: it bends only downward, where saturation pushes it), and it bends only at a
     # plane it touches; the rate there is the inflow minus the outflow, so g > 0 at a touch and
@@ -178,7 +178,7 @@ def _year(walls, outside_c, outside_phi):
 
 
 def test_month_lengths__non_leap_year():
-    # FORMAT.md: a month lasts its days of a non-leap year (365 days, February 28).
+    # docs/format.md: a month lasts its days of a non-leap year (365 days, February 28).
     seconds = month_seconds()
     assert seconds.sum() == pytest.approx(365 * DAY)
     assert seconds[1] == pytest.approx(28 * DAY)
@@ -186,7 +186,7 @@ def test_month_lengths__non_leap_year():
 
 def test_year_condensing_december_to_february__starts_in_december_and_dries_out():
     # Wall A; outside 0 °C, 80 % in December, January and February, 15 °C, 80 % otherwise.
-    # Start month (FORMAT.md): condensation Dec–Feb, none in November, so December.
+    # Start month (docs/format.md): condensation Dec–Feb, none in November, so December.
     # Hand calculation with the rates of the two one-month tests above:
     #   g_c = 1.0063e-6 (wet or dry, the interface is at saturation), g_e = −1.1646e-6 kg/(m²·s)
     #   Dec: 1.0063e-6·31·86400 = 2.6953;  Jan: 5.3906;  Feb: + 1.0063e-6·28·86400 = 7.8250
@@ -197,13 +197,13 @@ def test_year_condensing_december_to_february__starts_in_december_and_dries_out(
     outside_c = [0.0, 0.0] + [15.0] * 9 + [0.0]
     year = _year(WALL_A, outside_c, [0.8] * 12)
     assert year.condensation_predicted and not year.condensation_every_month
-    assert year.start_month == 12  # FORMAT.md start-month rule, wrap-around
+    assert year.start_month == 12  # docs/format.md start-month rule, wrap-around
     assert year.months.tolist() == [12, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11]
     assert year.accumulated_total[:6] == pytest.approx(
         [2.6953, 5.3906, 7.8250, 4.7058, 1.6871, 0.0], abs=5e-4)  # hand calculation
     assert year.monthly_balance[5] == pytest.approx(-1.6871, abs=5e-4)  # limited, hand
     assert year.monthly_balance.sum() == pytest.approx(0.0, abs=1e-12)  # all of it went
-    assert np.all(year.accumulated >= 0.0)  # FORMAT.md: never negative
+    assert np.all(year.accumulated >= 0.0)  # docs/format.md: never negative
     assert year.accumulated_total[6:].tolist() == [0.0] * 6
     assert year.max_accumulated == pytest.approx(7.8250, abs=5e-4)  # hand calculation
     assert year.month_of_max == 2  # February, hand calculation
@@ -232,7 +232,7 @@ def test_year_condensing_november_to_march__starts_in_november_and_does_not_dry_
     wall_b = ([2.5, 0.1], [1.0, 20.0], 0.13, 0.04)
     outside_c = [0.0] * 3 + [10.0] * 7 + [0.0] * 2
     year = _year(wall_b, outside_c, [0.8] * 12)
-    assert year.start_month == 11  # FORMAT.md start-month rule, wrap-around
+    assert year.start_month == 11  # docs/format.md start-month rule, wrap-around
     assert year.months.tolist() == [11, 12, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10]
     assert year.rates[0, 1] == pytest.approx(1.00631e-7, rel=5e-5)  # hand calculation
     assert year.rates[5, 1] == pytest.approx(-2.3081e-8, rel=5e-5)  # hand calculation
@@ -246,7 +246,7 @@ def test_year_condensing_november_to_march__starts_in_november_and_does_not_dry_
 def test_year_condensing_every_month__starts_in_january_and_accumulates_all_year():
     # Wall A with outside 0 °C, 80 % all year: g = 1.0063e-6 kg/(m²·s) every month (hand
     # calculation above), so 1.0063e-6·365·86400 = 31.73 kg/m² at the end of December.
-    # FORMAT.md does not say where such a year starts; calcdoc's convention is January.
+    # docs/format.md does not say where such a year starts; calcdoc's convention is January.
     year = _year(WALL_A, [0.0] * 12, [0.8] * 12)
     assert year.condensation_every_month
     assert year.start_month == 1
@@ -257,7 +257,7 @@ def test_year_condensing_every_month__starts_in_january_and_accumulates_all_year
 
 def test_year_with_vapour_control_layer__no_condensation_zeros_and_dries_out():
     # Common practice: a vapour control layer on the warm side (wall of the one-month test
-    # above); a cold invented climate from −5 °C to 15 °C, 90 %. FORMAT.md: with no
+    # above); a cold invented climate from −5 °C to 15 °C, 90 %. docs/format.md: with no
     # condensation in any month the three results are 0 / 1.
     outside_c = [-5.0, -4.0, 0.0, 5.0, 10.0, 15.0, 15.0, 15.0, 10.0, 5.0, 0.0, -3.0]
     walls = ([0.06, 2.5, 0.1], [100.0, 0.1, 0.1], 0.13, 0.04)
@@ -281,12 +281,12 @@ def _months(*condensing):
 
 
 @pytest.mark.parametrize("condensing, expected", [
-    (_months(12, 1, 2), 12),       # FORMAT.md rule: December follows a dry November
-    (_months(11, 12, 1, 2), 11),   # FORMAT.md rule: November follows a dry October
-    (_months(1, 2, 3), 1),         # FORMAT.md rule: January follows a dry December
-    (_months(2, 10, 11, 12), 2),   # FORMAT.md rule: the first such month in calendar order
+    (_months(12, 1, 2), 12),       # docs/format.md rule: December follows a dry November
+    (_months(11, 12, 1, 2), 11),   # docs/format.md rule: November follows a dry October
+    (_months(1, 2, 3), 1),         # docs/format.md rule: January follows a dry December
+    (_months(2, 10, 11, 12), 2),   # docs/format.md rule: the first such month in calendar order
     (_months(), None),             # no condensation: no year to step
-    (_months(*range(1, 13)), 1),   # every month: calcdoc's convention (FORMAT.md is silent)
+    (_months(*range(1, 13)), 1),   # every month: calcdoc's convention (docs/format.md is silent)
 ])
 def test_start_month__format_md_rule_cyclic(condensing, expected):
     assert start_month(condensing) == expected
@@ -295,7 +295,7 @@ def test_start_month__format_md_rule_cyclic(condensing, expected):
 # --- input checks ------------------------------------------------------------------------------
 
 def test_equivalent_air_thickness__mu_times_thickness():
-    # Definition s_d = μ·d (ISO 13788:2012 clause 3, from memory; FORMAT.md): 50 · 0.012 m.
+    # Definition s_d = μ·d (ISO 13788:2012 clause 3, from memory; docs/format.md): 50 · 0.012 m.
     assert equivalent_air_thickness(50.0, 0.012) == pytest.approx(0.6, rel=1e-12)
 
 

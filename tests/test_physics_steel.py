@@ -158,7 +158,7 @@ def test_protected_step__may_fall_while_gas_cools():
 # --- clause limits -----------------------------------------------------------------------------
 
 def test_section_factor_below_10_per_m_refused():
-    # EN 1993-1-2:2005 §4.2.5.1: Am/V not less than 10 m⁻¹ (applied to Ap/V too, FORMAT.md).
+    # EN 1993-1-2:2005 §4.2.5.1: Am/V not less than 10 m⁻¹ (applied to Ap/V too, docs/format.md).
     with pytest.raises(PhysicsRangeError) as caught:
         unprotected_steel_heating(standard_fire(), 600.0, 9.9, 25.0)
     assert "10 1/m" in caught.value.expected
@@ -226,7 +226,7 @@ def test_history__grid_ends_exactly_at_duration():
 
 
 def test_unprotected__first_step_uses_gas_at_start_of_step():
-    # FORMAT.md scheme: θg at the start of the step. The standard curve is 20 °C at t = 0, so the
+    # docs/format.md scheme: θg at the start of the step. The standard curve is 20 °C at t = 0, so the
     # first step from 20 °C steel has no flux; the second step is eq. (4.25) at θg(5 s).
     run = unprotected_steel_heating(standard_fire(), 60.0, 200.0, 25.0)
     assert run.temperature[1] == run.temperature[0] == 293.15
@@ -357,7 +357,7 @@ def test_protected__explicit_steps_agree_with_scipy_ode_solution():
 # --- time to a temperature ---------------------------------------------------------------------
 
 def test_time_to_temperature__linear_between_steps_or_none():
-    # FORMAT.md: times between steps by linear interpolation.
+    # docs/format.md: times between steps by linear interpolation.
     assert time_to_temperature([0.0, 10.0, 20.0], [300.0, 400.0, 500.0], 450.0) == 15.0
     assert time_to_temperature([0.0, 10.0], [300.0, 400.0], 401.0) is None
     assert time_to_temperature([0.0, 10.0], [500.0, 600.0], 450.0) == 0.0

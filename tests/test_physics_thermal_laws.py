@@ -40,7 +40,7 @@ def test_concrete_conductivity_lower__en1992_1_2_eq_3_8_at_20_and_1200_degc():
 
 
 def test_concrete_conductivity__lower_limit_is_default_and_below_upper():
-    # FORMAT.md: lower limit by default (EN 1992-1-2 §3.3.3(2) Note: Annex A compatible with it);
+    # docs/format.md: lower limit by default (EN 1992-1-2 §3.3.3(2) Note: Annex A compatible with it);
     # the lower limit lies below the upper one over 20-1200 °C: by hand, upper - lower =
     # 0.64 - 0.1091 r + 0.005 r² (r = θ/100) has its least value 0.045 at r = 10.9.
     theta = K(np.linspace(20, 1200, 60))

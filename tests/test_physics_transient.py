@@ -143,7 +143,7 @@ def test_energy_balance__heat_in_equals_stored_plus_out_within_0_1_percent():
 
 
 def test_default_mesh_and_step__halving_both_changes_insulation_time_below_1_percent():
-    # FORMAT.md (wall_fire_exposure): the default mesh and time step must resolve
+    # docs/format.md (wall_fire_exposure): the default mesh and time step must resolve
     # time_to_insulation to within 1 % (halving both changes it by less than 1 %).
     cases = [
         [Layer(0.08, concrete_law())],
@@ -191,7 +191,7 @@ def test_mesh_refinement__unexposed_face_converges():
 def test_slab_thickness_en1992_1_2_table_5_8__insulation_not_below_rating(thickness, rating_min):
     # EN 1992-1-2:2004 Table 5.8 (from memory): minimum slab thickness hs 80 mm for REI 60 and
     # 120 mm for REI 120 (the insulation criterion I). Defaults: lower-limit conductivity, 1.5 %
-    # moisture, 2300 kg/m³ (FORMAT.md), standard fire, 140 K mean rise (EN 1363-1).
+    # moisture, 2300 kg/m³ (docs/format.md), standard fire, 140 K mean rise (EN 1363-1).
     duration = 2.0 * rating_min * 60.0
     lower = solve_transient([Layer(thickness, concrete_law())], STANDARD_FIRE, duration)
     upper = solve_transient([Layer(thickness, concrete_law("upper"))], STANDARD_FIRE, duration)

@@ -4,7 +4,7 @@ One small project is built once (site and PDF) and inspected many ways: page ima
 pdftoppm, page text from pypdf, the HTML of the site. What is checked comes from the trade's
 practice for calculation packages (common practice: every page of a calculation carries a title
 block with project, package, sheet, revision, preparer and checker and "page N of M"; an
-unapproved issue is marked as not for construction), from FORMAT.md's contract, and from open
+unapproved issue is marked as not for construction), from docs/format.md's contract, and from open
 standards (CSS Values and Units: 1 px = 0.75 pt; PDF/A-3 keeps embedded files).
 """
 

@@ -1,4 +1,4 @@
-"""Quantity parsing and display: the temperature rules of FORMAT.md, conversions against NIST."""
+"""Quantity parsing and display: the temperature rules of docs/format.md, conversions against NIST."""
 
 import pytest
 
@@ -21,7 +21,7 @@ def test_negative_celsius__minus_5_degC_is_268_15_K():
 
 
 def test_compound_degC_is_per_degree__0_5_W_per_m_degC_is_0_5_W_per_m_K():
-    # A per-degree Celsius interval equals a kelvin (SI Brochure §2.3.1); FORMAT.md, Values.
+    # A per-degree Celsius interval equals a kelvin (SI Brochure §2.3.1); docs/format.md, Values.
     value, _ = parse_quantity_text("0.5 W/(m*degC)", "W/(m*K)")
     assert value == pytest.approx(0.5, rel=1e-12)
 

@@ -1,4 +1,4 @@
-"""Fire exposure kinds: ``fire_curve`` and ``steel_member_heating`` (FORMAT.md).
+"""Fire exposure kinds: ``fire_curve`` and ``steel_member_heating`` (docs/format.md).
 
 A fire is passed between blocks as the curve itself: a ``fire_curve`` block publishes its
 :class:`~calcdoc.physics.firecurves.FireCurve` as the object of its ``temperature`` series, and a
@@ -316,7 +316,7 @@ def _check_curve_inputs(inp, out):
     stray = [name for name in given if name not in allowed]
     if stray:
         raise _input_error(out, stray[0], f"input '{stray[0]}' does not apply to curve "
-                           f"'{curve}'", "only the inputs of the chosen curve (FORMAT.md, "
+                           f"'{curve}'", "only the inputs of the chosen curve (docs/format.md, "
                            "fire_curve)", repr(inp[stray[0]]), fallback="curve")
     if curve == "parametric":
         missing = [n for n in _PARAMETRIC_INPUTS if inp[n] is None]
@@ -346,8 +346,8 @@ def _build_curve(inp, out) -> FireCurve:
                                 inp.duration if inp.duration is not None else DEFAULT_DURATION)
     if inp.duration is None:
         out.note("Duration {d}: " + ("the last time of the table." if name == "tabulated"
-                                     else "calcdoc's default exposure (FORMAT.md, fire_curve)."),
-                 "FORMAT.md, fire_curve", d=_time(curve.duration, True))
+                                     else "calcdoc's default exposure (docs/format.md, fire_curve)."),
+                 "docs/format.md, fire_curve", d=_time(curve.duration, True))
     if inp.convection_coefficient is not None and name != "tabulated":
         out.note("Convection coefficient set to {alpha} in place of the curve's {own}.",
                  _convection_clause(curve), alpha=out.input("convection_coefficient"),

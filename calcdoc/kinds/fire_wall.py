@@ -1,6 +1,6 @@
 """The ``wall_fire_exposure`` kind: transient conduction through layers heated on one face.
 
-Inputs and results are those of FORMAT.md (wall_fire_exposure); the physics is
+Inputs and results are those of docs/format.md (wall_fire_exposure); the physics is
 :func:`calcdoc.physics.transient.check_convergence` (the solver run twice, the second time with
 the cells and the time step halved) with the material laws of
 :mod:`calcdoc.physics.thermal_laws`.
@@ -62,7 +62,7 @@ _CONCRETE_DEFAULT_SOURCE = "EN 1992-1-2:2004, §3.3.3(2) Note and §3.3.2(2)"
 _EN1992 = "EN 1992-1-2:2004"
 _EN1993 = "EN 1993-1-2:2005"
 _RUN_SOURCE = "calcdoc.physics.transient (the method is stated in its documentation)"
-_RESOLUTION_SOURCE = ("calcdoc input format (FORMAT.md), wall_fire_exposure: the mesh and step "
+_RESOLUTION_SOURCE = ("calcdoc input format (docs/format.md), wall_fire_exposure: the mesh and step "
                       "resolve the result to 1 %")
 _INSULATION_SOURCE = "EN 1363-1; EN 1991-1-2:2002, §2.1.3"
 
@@ -827,10 +827,10 @@ WALL_FIRE_EXPOSURE = Kind(
         Quantity("required_resistance", "required fire resistance period (within the duration)",
                  default=None, unit="s", greater_than=0.0, display="min"),
         Quantity("cell_size", "largest cell of the mesh (at least 8 cells per layer)",
-                 default="2 mm", source="calcdoc default, checked by halving (FORMAT.md)",
+                 default="2 mm", source="calcdoc default, checked by halving (docs/format.md)",
                  unit="m", greater_than=0.0, display="mm"),
         Quantity("time_step", "time step Δt", default="10 s",
-                 source="calcdoc default, checked by halving (FORMAT.md)", unit="s",
+                 source="calcdoc default, checked by halving (docs/format.md)", unit="s",
                  greater_than=0.0),
     ),
     results=(

@@ -1,7 +1,7 @@
 """Surface radiation kinds: emission, two-surface exchange, view factors, radiant exposure.
 
 The physics is in :mod:`calcdoc.physics.radiation`, :mod:`calcdoc.physics.viewfactors` and
-:mod:`calcdoc.physics.exposure`; this module declares the inputs and results of FORMAT.md and
+:mod:`calcdoc.physics.exposure`; this module declares the inputs and results of docs/format.md and
 records the working as data: each closed-form step in the formula language over named operands,
 each view factor whose closed form needs an arctangent (which the formula language does not
 have) as a statement naming its catalogue case after the dimensionless ratios it takes, and the

@@ -109,7 +109,7 @@ class Surface:
 
     ``side`` is ``"inside"`` or ``"outside"`` (the environment it faces) and
     ``surface_resistance`` R_s [m²·K/W] (0 holds the face at the environment temperature).
-    ``start`` and ``end`` are FORMAT.md's ``from`` and ``to``.
+    ``start`` and ``end`` are docs/format.md's ``from`` and ``to``.
     """
 
     start: tuple[float, float]

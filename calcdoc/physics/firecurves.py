@@ -49,7 +49,7 @@ __all__ = [
 #: 20 °C, the initial (ambient) gas temperature of every curve of EN 1991-1-2:2002 §3.2 and Annex A.
 AMBIENT_TEMPERATURE = 293.15
 
-#: 120 min, the default duration of a fire (FORMAT.md, fire_curve).
+#: 120 min, the default duration of a fire (docs/format.md, fire_curve).
 DEFAULT_DURATION = 7200.0
 
 _KELVIN_OFFSET = 273.15

@@ -5,7 +5,7 @@ at each plane of a layered element; the vapour pressure over cumulative equivale
 is the tautest line from the inside to the outside vapour pressure that nowhere exceeds
 saturation, and where it touches saturation vapour condenses at the rate by which the inflow
 exceeds the outflow. The year: twelve months stepped from the start month, moisture accumulating
-at the condensation interfaces and evaporating from them, as the method in the FORMAT.md section
+at the condensation interfaces and evaporating from them, as the method in the docs/format.md section
 ``interstitial_condensation`` states it.
 
 Planes are numbered 0 … n for n layers: 0 is the inside surface, k (1 ≤ k ≤ n − 1) the interface
@@ -52,13 +52,13 @@ __all__ = [
 GLASER_METHOD_SOURCE = ("ISO 13788:2012, clause 6 (monthly interstitial condensation, Glaser "
                         "method); saturation pressure: " + SATURATION_PRESSURE_SOURCE)
 
-# δ0 of the method (FORMAT.md, interstitial_condensation; the value ISO 13788:2012 uses for the
+# δ0 of the method (docs/format.md, interstitial_condensation; the value ISO 13788:2012 uses for the
 # water vapour permeability of still air, from memory) [kg/(m s Pa)].
 VAPOUR_PERMEABILITY_OF_AIR = 2.0e-10
 
 MONTH_NAMES = ("January", "February", "March", "April", "May", "June", "July", "August",
                "September", "October", "November", "December")
-# A non-leap year, as FORMAT.md settles it.
+# A non-leap year, as docs/format.md settles it.
 MONTH_DAYS = (31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31)
 
 # A point is a vertex of the tautest line only when it lies below the chord of its neighbours by
@@ -80,7 +80,7 @@ def month_seconds() -> np.ndarray:
 
     Notes
     -----
-    FORMAT.md (interstitial_condensation) settles that a month lasts its days of a non-leap
+    docs/format.md (interstitial_condensation) settles that a month lasts its days of a non-leap
     year; ISO 13788:2012 leaves the month's length to the climate data (from memory).
 
     Examples
@@ -119,7 +119,7 @@ def equivalent_air_thickness(vapour_resistance_factor: ArrayLike,
     μ is the ratio of the vapour permeability of still air to that of the material, so still
     air has μ = 1 and no material has less: μ < 1 is refused (common practice; tabulated design
     values, e.g. ISO 10456, start at 1). Definition of s_d as in ISO 13788:2012 clause 3 (from
-    memory) and FORMAT.md.
+    memory) and docs/format.md.
 
     Examples
     --------
@@ -309,7 +309,7 @@ def vapour_profile(layer_resistances: ArrayLike, equivalent_air_thicknesses: Arr
 
     Notes
     -----
-    The method as FORMAT.md (interstitial_condensation) states it, after ISO 13788:2012 clause 6
+    The method as docs/format.md (interstitial_condensation) states it, after ISO 13788:2012 clause 6
     (from memory): steady one-dimensional conduction with the surface resistances; saturation
     pressure of ISO 13788 Annex E over ice below 0 °C (:func:`calcdoc.physics.conduction.
     saturation_vapour_pressure`, −40 °C to +80 °C, so every air temperature must lie there);
@@ -371,9 +371,9 @@ def start_month(condensation_predicted: Sequence[bool]) -> int | None:
 
     Notes
     -----
-    The rule of FORMAT.md (interstitial_condensation), after ISO 13788:2012 clause 6 (from
+    The rule of docs/format.md (interstitial_condensation), after ISO 13788:2012 clause 6 (from
     memory). Condensation from December to February starts the year in December; from November
-    to February, in November. FORMAT.md does not say where a year with condensation in every
+    to February, in November. docs/format.md does not say where a year with condensation in every
     month starts; January is calcdoc's convention (there is then no dry month to start after).
 
     Examples
@@ -484,7 +484,7 @@ def interstitial_condensation(layer_resistances: ArrayLike,
 
     Notes
     -----
-    The method of FORMAT.md (interstitial_condensation), after ISO 13788:2012 clause 6 (from
+    The method of docs/format.md (interstitial_condensation), after ISO 13788:2012 clause 6 (from
     memory). Condensation is predicted in a month when its profile with every interface dry
     (:func:`vapour_profile`) touches saturation; the year starts in the month given by
     :func:`start_month` with every interface dry and runs twelve months. In each month the

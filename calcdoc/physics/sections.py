@@ -43,7 +43,7 @@ __all__ = [
     "rolled_section",
 ]
 
-#: Sides of an I-section exposed to the fire (FORMAT.md, steel_member_heating).
+#: Sides of an I-section exposed to the fire (docs/format.md, steel_member_heating).
 EXPOSURES = ("four_sided", "three_sided")
 #: Fire protection follows the profile (contour) or encloses it (box), EN 1993-1-2:2005 Table 4.2.
 ENCASEMENTS = ("contour", "box")

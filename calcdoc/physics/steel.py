@@ -1,6 +1,6 @@
 """Lumped temperature of steel members in fire: EN 1993-1-2:2005 §4.2.5 with §3.4.1.2 and §4.2.4.
 
-Scheme (FORMAT.md, steel_member_heating): explicit steps of eq. (4.25) (unprotected) or eq. (4.27)
+Scheme (docs/format.md, steel_member_heating): explicit steps of eq. (4.25) (unprotected) or eq. (4.27)
 (protected) on times t_0 = 0, t_i = i Δt (the last step shortened to end at the duration). Every
 quantity of a step — the gas temperature θg, the steel specific heat c_a, the net heat flux — is
 taken at the start of the step, t_i; in eq. (4.27) Δθg = θg(t_i + Δt) − θg(t_i). Times between
@@ -61,7 +61,7 @@ UNPROTECTED_MAX_TIME_STEP = 5.0
 #: Δt <= 30 s for eq. (4.27), protected members (EN 1993-1-2:2005 §4.2.5.2).
 PROTECTED_MAX_TIME_STEP = 30.0
 #: Am/V not less than 10 m⁻¹ in eq. (4.25) (EN 1993-1-2:2005 §4.2.5.1); calcdoc applies the same
-#: lower limit to Ap/V of protected members (FORMAT.md, steel_member_heating).
+#: lower limit to Ap/V of protected members (docs/format.md, steel_member_heating).
 MINIMUM_SECTION_FACTOR = 10.0
 #: μ0 >= 0.013 for eq. (4.22) (EN 1993-1-2:2005 §4.2.4).
 MINIMUM_UTILISATION = 0.013
@@ -784,7 +784,7 @@ def time_to_temperature(time, temperature, target: float) -> float | None:
 
     Notes
     -----
-    Linear interpolation between steps, as FORMAT.md (steel_member_heating) states.
+    Linear interpolation between steps, as docs/format.md (steel_member_heating) states.
 
     Examples
     --------

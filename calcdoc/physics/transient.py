@@ -34,7 +34,7 @@ Defaults: cells of at most :data:`DEFAULT_CELL_SIZE` (2 mm) and at least
 :data:`DEFAULT_MIN_CELLS` (8) per layer, time step :data:`DEFAULT_TIME_STEP` (10 s). For the
 cases in tests/test_physics_transient.py (80 mm and 100 mm concrete at 1.5 % and 3 % moisture, and a
 15 mm board over 80 mm of concrete, under the standard fire) halving both changes
-``time_to_insulation`` by under 0.1 %, against FORMAT.md's 1 %; any other case is checked with
+``time_to_insulation`` by under 0.1 %, against docs/format.md's 1 %; any other case is checked with
 :func:`check_convergence` (the wall_fire_exposure kind runs it every time).
 """
 
@@ -752,7 +752,7 @@ def check_convergence(layers: Sequence[Layer], exposed: FireExposure | HeldTempe
     with every layer's cell count doubled and the time step halved. The compared quantity is
     ``time_to_insulation``; where insulation is not reached in either run, the rise of the
     unexposed face at the end is compared instead. ``limit`` is the largest acceptable relative
-    change [1] (0.01: 1 %, FORMAT.md's requirement for the default mesh).
+    change [1] (0.01: 1 %, docs/format.md's requirement for the default mesh).
     """
     layers = tuple(layers)
     base = solve_transient(layers, exposed, duration, **options)

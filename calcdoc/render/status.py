@@ -72,7 +72,7 @@ def final_refusals(package, check_words) -> list[str]:
 
     Final means: the current revision has an approver, every sheet is checked at the current
     revision by someone other than its preparer, every check passes, no review comment is
-    open (FORMAT.md, Command line), every library value used is confirmed against its printed
+    open (docs/format.md, Command line), every library value used is confirmed against its printed
     source, every input has a source or is stated as an assumption, and each sheet is checked
     on or after it was prepared. ``check_words(check)`` prints a failed check's value and
     limit as the package does."""
