@@ -79,10 +79,13 @@ def results_document(package) -> dict:
                 entry["simulated_until"] = out.simulated_until
             blocks.append(entry)
         sheets.append({"id": sheet.id, "title": sheet.spec.title, "blocks": blocks})
-    return {"format_version": FORMAT_VERSION, "calcdoc_version": __version__,
-            "project": {"number": project.number, "title": project.title,
-                        "revision": project.revision.rev},
-            "sheets": sheets}
+    doc = {"format_version": FORMAT_VERSION, "calcdoc_version": __version__,
+           "project": {"number": project.number, "title": project.title,
+                       "revision": project.revision.rev},
+           "sheets": sheets}
+    if package.partial:  # build --sheet: these sheets only, not the package as issued
+        doc["partial"] = True
+    return doc
 
 
 def _version(name: str) -> str:

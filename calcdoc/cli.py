@@ -34,8 +34,12 @@ def _print_errors(errors) -> None:
 
 def cmd_build(args) -> int:
     from calcdoc.build import build
+    if args.final and args.sheet:
+        print("calcdoc: error: --final issues the whole package; it cannot be used with "
+              "--sheet (expected one of them, got both)", file=sys.stderr)
+        return 2
     report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final,
-                   previous=args.previous)
+                   previous=args.previous, sheets=args.sheet)
     failed = [c for s in report.package.sheets for c in s.checks if not c.passed]
     times = ", ".join(f"{k} {v:.2f} s" for k, v in report.timings.items())
     print(f"built {report.out_dir} ({len(report.files)} files; {times})")
@@ -310,6 +314,8 @@ def parser() -> argparse.ArgumentParser:
     b.add_argument("project")
     b.add_argument("--out", help="output folder (default build/<project name>)")
     b.add_argument("--no-pdf", action="store_true", help="skip the PDF")
+    b.add_argument("--sheet", action="append", metavar="ID",
+                   help="build only this sheet (repeat for more), with what it refers to")
     b.add_argument("--previous", metavar="BUILD",
                    help="the build (folder or PDF) of the previous issued revision: mark what "
                         "changed since")

@@ -44,7 +44,8 @@ def _refs_in(node: Node | None):
             yield from _refs_in(value)
 
 
-def _order(project: Project, errors: list[InputError]) -> list[BlockSpec]:
+def _order(project: Project, errors: list[InputError],
+           only: set[str] | None = None) -> list[BlockSpec]:
     """Return blocks in dependency order (document order where free); record bad refs, cycles."""
     blocks = {b.key: b for s in project.sheets for b in s.blocks}
     sheets = {s.id for s in project.sheets}
@@ -99,7 +100,8 @@ def _order(project: Project, errors: list[InputError]) -> list[BlockSpec]:
         state[key] = 2
         order.append(key)
 
-    for key in blocks:
+    roots = [k for k in blocks if only is None or k.split(".")[0] in only]
+    for key in roots:  # a part of the package: its blocks and what they refer to
         visit(key, [])
     return [blocks[k] for k in order]
 
@@ -116,11 +118,24 @@ def evaluate_folder(folder) -> Package:
     return evaluate_project(project, errors)
 
 
-def evaluate_project(project: Project, errors: list[InputError] | None = None) -> Package:
+def evaluate_project(project: Project, errors: list[InputError] | None = None,
+                     only: set[str] | None = None) -> Package:
     """Return the evaluated package; raise InputErrors listing every problem found (and
-    ``errors`` found before, e.g. by the loader)."""
+    ``errors`` found before, e.g. by the loader). ``only`` names the sheets wanted: they and
+    the blocks they refer to are evaluated, the package holds only them."""
     errors = list(errors or [])
-    ordered = _order(project, errors)
+    if only is not None:
+        known = {s.id for s in project.sheets}
+        unknown = sorted(only - known)
+        if unknown:
+            raise InputErrors([InputError(Location(str(project.files.label("project.yaml"))
+                                                   if project.files else "project.yaml"),
+                                          "--sheet", f"unknown sheet '{unknown[0]}'",
+                                          "one of " + ", ".join(sorted(known)),
+                                          repr(unknown[0]), did_you_mean(unknown[0], known))])
+        errors = [e for e in errors if not e.location.name.startswith("sheets/") or any(
+            s.relpath == e.location.name and s.id in only for s in project.sheets)]
+    ordered = _order(project, errors, only)
     done: dict[str, EvaluatedBlock] = {}
     failed: set[str] = set()
 
@@ -134,8 +149,9 @@ def evaluate_project(project: Project, errors: list[InputError] | None = None) -
 
     if errors:
         raise InputErrors(errors)
-    sheets = [EvaluatedSheet(s, [done[b.key] for b in s.blocks]) for s in project.sheets]
-    package = Package(project, sheets)
+    sheets = [EvaluatedSheet(s, [done[b.key] for b in s.blocks]) for s in project.sheets
+              if only is None or s.id in only]
+    package = Package(project, sheets, partial=only is not None)
     _check_confirmations(package)
     return package
 

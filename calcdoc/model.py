@@ -186,6 +186,7 @@ class EvaluatedSheet:
 class Package:
     project: Project
     sheets: list[EvaluatedSheet]
+    partial: bool = False  # only some sheets (build --sheet): not the package as issued
 
     def block(self, key: str) -> EvaluatedBlock | None:
         for sheet in self.sheets:

@@ -133,7 +133,7 @@ def _commands() -> list[str]:
     lines = ["## Commands", "", "| command | does |", "| --- | --- |"]
     sub = next(a for a in parser()._subparsers._group_actions)  # noqa: SLF001 - argparse
     for name, command in sub.choices.items():
-        usage = command.format_usage().replace("usage: ", "").strip()
+        usage = " ".join(command.format_usage().replace("usage: ", "").split())
         help_text = next((c.help for c in sub._choices_actions if c.dest == name), "")
         lines.append(f"| `{_escape(usage)}` | {_escape(help_text)} |")
     return lines + [""]

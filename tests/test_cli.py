@@ -1,6 +1,7 @@
 """The command line: new, kinds, check; exit codes as docs/format.md states them."""
 
 import json
+from pathlib import Path
 
 from calcdoc.cli import main
 from calcdoc.kinds import registry
@@ -96,3 +97,33 @@ def test_starter_lists_layers_inside_outward_and_names_its_schemas(tmp_path):
         "Brick outer leaf"
     schema = json.loads((tmp_path / "p" / "schemas" / "sheet.json").read_text())
     assert schema["$schema"].endswith("2020-12/schema")
+
+
+def test_build_sheet_builds_one_sheet_with_what_it_refers_to(tmp_path, capsys):
+    # HG1 takes EW1's and FW1's U-values: they are evaluated, not printed
+    demo = Path(__file__).resolve().parents[1] / "projects" / "cold-store"
+    out = tmp_path / "hg1"
+    assert main(["build", str(demo), "--sheet", "HG1", "--out", str(out), "--no-pdf"]) == 0
+    doc = json.loads((out / "results.json").read_text())
+    assert [s["id"] for s in doc["sheets"]] == ["HG1"] and doc["partial"] is True
+    assert sorted(p.name for p in out.glob("sheet-*.html")) == ["sheet-HG1.html"]
+    page = (out / "sheet-HG1.html").read_text()
+    assert "part of the package only: HG1" in page
+    assert "EW1.wall.U (another sheet)" in page and 'href="None' not in page
+    whole = tmp_path / "whole"
+    assert main(["build", str(demo), "--out", str(whole), "--no-pdf"]) == 0
+    full = json.loads((whole / "results.json").read_text())
+    assert "partial" not in full
+    hg1 = next(s for s in full["sheets"] if s["id"] == "HG1")
+    assert hg1 == doc["sheets"][0]  # the same numbers as in the whole package
+
+
+def test_build_sheet_refuses_an_unknown_sheet_and_final(tmp_path, capsys):
+    demo = Path(__file__).resolve().parents[1] / "projects" / "cold-store"
+    out = tmp_path / "out"
+    assert main(["build", str(demo), "--sheet", "HG2", "--out", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert "unknown sheet 'HG2'" in err and "did you mean 'HG1'?" in err
+    assert main(["build", str(demo), "--sheet", "HG1", "--final", "--out", str(out)]) == 2
+    assert "cannot be used with --sheet" in capsys.readouterr().err
+    assert not out.exists()

@@ -126,11 +126,15 @@ class Citations:
 class _Links:
     """Where an anchor lives: on a site page, or in the one PDF document."""
 
-    def __init__(self, target: str):
+    def __init__(self, target: str, sheets: set[str] | None = None):
         self.target = target
+        self.sheets = sheets  # the sheets this package holds (None: all)
 
-    def anchor(self, key: str) -> str:
-        """Return the link to a sheet, block or result key ('EW1', 'EW1.wall', 'EW1.wall.U')."""
+    def anchor(self, key: str) -> str | None:
+        """Return the link to a sheet, block or result key ('EW1', 'EW1.wall', 'EW1.wall.U');
+        None for a sheet a partial package does not hold."""
+        if self.sheets is not None and key.split(".")[0] not in self.sheets:
+            return None
         if self.target == "site":
             return f"{sheet_page_name(key.split('.')[0])}#{key}"
         return f"#{key}"
@@ -541,7 +545,7 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
         results.append({"name": name, "meaning": series.label or f"{series.y_unit} over "
                         f"{series.x_label}", "display": f"curve of {len(series.x)} points"
                         + (" (figure)" if drawn else ""),
-                        "anchor": f"{key}.{name}", "absent": False})
+                        "anchor": f"{key}.{name}", "absent": False, "mark": ""})
     warnings = [{"text": fill(w["text"], sig, system), "cite": cites.cite(w.get("source", ""),
                                                                           key)}
                 for w in out.warnings]
@@ -653,7 +657,7 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
     sig, system = project.precision, project.units
     drawings = drawings or Drawings(sig, system)
     math = mathml if target == "site" else pdf_math
-    links = _Links(target)
+    links = _Links(target, {s.id for s in package.sheets} if package.partial else None)
     cites = Citations()
     current = project.revision.rev
     keys = {s.id for s in package.sheets} | {b.key for s in package.sheets for b in s.blocks}
@@ -744,6 +748,7 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         "target": target,
         "changes": changes.groups() if changes else [],
         "changed_since": changes.old_revision if changes else None,
+        "partial": [s.id for s in package.sheets] if package.partial else None,
     }
 
 
