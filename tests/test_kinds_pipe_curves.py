@@ -11,14 +11,18 @@ asserted word for word in the located format FILE:LINE:COL: error: WHERE: WHAT (
 from __future__ import annotations
 
 import math
+import shutil
 from pathlib import Path
 
 import numpy as np
 import pytest
+import yaml
 from scipy.integrate import solve_bvp, solve_ivp
 from scipy.optimize import brentq
 
 from calcdoc.cli import main
+from calcdoc.evaluate import evaluate_project
+from calcdoc.project import load_project
 from calcdoc.provenance import values_to_confirm
 from calcdoc.render.printed import fill
 from conftest import write_project
@@ -431,7 +435,7 @@ def test_bad_input__curve_left_while_another_layer_is_sized(errors_of):
         "got ")
 
 
-# --- the figure -----------------------------------------------------------------------------------
+# --- the figure and the demo sheet ------------------------------------------------------------
 
 def test_radial_profile_in_a_curve_layer__matches_solve_ivp(evaluate):
     # Within a curve layer the figure follows dT/dr = -q'/(2π r λ(T)), integrated here by
@@ -453,3 +457,29 @@ def test_radial_profile_in_a_curve_layer__matches_solve_ivp(evaluate):
                          (x[0], x[-1]), [623.15], t_eval=x, rtol=1e-10, atol=1e-10)
     assert np.allclose(line.y, solution.y[0], atol=1e-5)  # scipy solve_ivp
     assert line.y[-1] == pytest.approx(results(package)["theta_surface"], abs=1e-6)
+
+
+@pytest.fixture(scope="module")
+def demo_with_sm1(tmp_path_factory) -> Path:
+    """A copy of the demo project with SM1 added after PW1 (the lead adds it to the real one)."""
+    demo = tmp_path_factory.mktemp("demo") / "cold-store"
+    shutil.copytree(ROOT / "projects" / "cold-store", demo)
+    project = yaml.safe_load((demo / "project.yaml").read_text())
+    sheets = project["package"]["sheets"]
+    assert "sheets/sm1.yaml" not in sheets
+    sheets.insert(sheets.index("sheets/pipework.yaml") + 1, "sheets/sm1.yaml")
+    (demo / "project.yaml").write_text(yaml.safe_dump(project, sort_keys=False))
+    return demo
+
+
+def test_demo_sm1__touch_temperature_sizing_and_every_step_redoes(demo_with_sm1):
+    package = evaluate_project(load_project(demo_with_sm1))
+    block = package.block("SM1.main")
+    got = {name: r.value for name, r in block.output.results.items()}
+    # A thickness between 1 mm and the 50 mm written meets the 50 °C touch limit (common
+    # practice for accessible surfaces); at 50 mm the surface is cooler than the limit.
+    assert 0.001 < got["required_thickness"] < 0.050
+    assert got["theta_surface"] < 50.0 + C
+    assert all(check.passed for check in block.checks)
+    for key in ("SM1.main", "PW1.chw", "PW1.lthw"):
+        assert wrong_steps(package.block(key)) == []
