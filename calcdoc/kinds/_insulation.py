@@ -48,7 +48,7 @@ BRENT_SOURCE = "Brent's method (scipy.optimize.brentq)"
 # real insulation, cheap enough for a block.
 SIZING_SAMPLES = 41
 
-GROUP_CONVERGED = "Temperatures through the layers at convergence"
+GROUP_CONVERGED = "Temperatures through the layers at convergence, solved with the means"
 GROUP_MEAN = "Mean conductivity of each layer with a conductivity curve"
 GROUP_CHECK = "Temperature at each interface from q′ (the converged temperatures again)"
 GROUP_SIZED_DIAMETERS = "Outer diameter of each layer at the required thickness"
@@ -295,12 +295,11 @@ def curve_steps(out, inp, solved, curves, names, T_i: Value, symbols: dict) -> d
     conductivities (layer index → Value)."""
     n = len(curves)
     film = inp.inside_coefficient is not None
-    out.note("A layer with a conductivity curve takes the curve's mean over its own temperature "
-             "range, with which it carries exactly the curve's heat flow (Kirchhoff transform). "
-             "Temperatures and mean conductivities are solved together (Brent's method on q′, "
-             "{n} iterations; one more substitution changes a mean conductivity by a fraction "
-             "{change} at most); the converged temperatures are stated below and found again "
-             "from q′ after it.", MEAN_CONDUCTIVITY_SOURCE,
+    out.note("A layer with a conductivity curve takes the curve's mean over its temperature "
+             "range (exact, by the Kirchhoff transform), solved together with the temperatures "
+             "by Brent's method on q′ ({n} iterations; one more substitution changes a mean by "
+             "a fraction {change} at most); the converged temperatures are stated below and "
+             "found again from q′.", MEAN_CONDUCTIVITY_SOURCE,
              n=Value(float(solved.iterations), given=True),
              change=Value(float(solved.conductivity_change), given=True))
     for j, curve in enumerate(curves):
@@ -324,12 +323,14 @@ def curve_steps(out, inp, solved, curves, names, T_i: Value, symbols: dict) -> d
             faces[0] = ("T_i", T_i)  # no inside film: the bore is at the inside temperature
             continue
         name = "T_s" if k == n else f"T_{k}"
-        label = ("Outer surface temperature at convergence" if k == n else
-                 "Inner surface temperature at convergence" if k == 0 else
-                 phrase("Temperature between layers {a} and {b} at convergence",
-                        a=Value(k, given=True), b=Value(k + 1, given=True)))
+        # What was done is said by the method note and the group's name (or, printed alone,
+        # the label): the rows give the values only.
+        label = ("Outer surface temperature at convergence, solved with the means" if k == n
+                 else "Inner surface temperature at convergence, solved with the means" if k == 0
+                 else phrase("Temperature between layers {a} and {b} at convergence, solved "
+                             "with the means", a=Value(k, given=True), b=Value(k + 1, given=True)))
         faces[k] = (name, out.statement(
-            name, "solved with the mean conductivities (see the method)", T[k], "K",
+            name, "", T[k], "K",
             temperature=ABSOLUTE, label=label, source=BRENT_SOURCE, group=GROUP_CONVERGED,
             item=_interface_item(k, n, names), symbols=symbols))
 

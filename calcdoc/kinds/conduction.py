@@ -957,9 +957,8 @@ def _pipe_figure(out, inp, flow, conductivities, dew, curves) -> FigureData:
              Mark("y", inp.inside_temperature, "fluid inside", 3)]
     places = {"r0": Value(radii[0], "m", "mm"), "rn": Value(radii[-1], "m", "mm"),
               "ts": out.value_of("theta_surface"), "ta": out.input("ambient_temperature")}
-    shape = ("logarithmic within each layer (Fourier's law in a cylinder)" if not any(curves)
-             else "logarithmic within a layer of constant conductivity and, within a layer with a "
-             "conductivity curve, with ∫λ dT logarithmic in the radius (Kirchhoff transform)")
+    shape = "logarithmic within each layer (Fourier's law in a cylinder" + (
+        "; in a layer with a conductivity curve, ∫λ dT is)" if any(curves) else ")")
     caption = ("Temperature through the pipe's layers against the radius from its axis (bore "
                "radius {r0}, outer radius {rn}), " + shape + "; the surface film lies between "
                "the outer surface at {ts} and the ambient air at {ta}.")
