@@ -51,8 +51,10 @@ def _sources_of(block):
 def _origins(block) -> list[str]:
     found: list[str] = []
     for step in block.output.steps:
-        for value in step.operands.values():
-            if value.origin and value.origin not in found:
+        # a statement's named values are its operands (the points of a curve it integrates)
+        named = step.statement.values.values() if step.statement is not None else ()
+        for value in (*step.operands.values(), *named):
+            if isinstance(value, Value) and value.origin and value.origin not in found:
                 found.append(value.origin)
     return found
 

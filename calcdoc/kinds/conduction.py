@@ -19,6 +19,9 @@ from scipy.constants import zero_Celsius
 
 from calcdoc.data import Axis, Band, FigureData, Line, Mark, library_value
 from calcdoc.references import Cite
+from calcdoc.kinds._insulation import (ConductivityCurveField, InsulationMaterial, LayerName,
+                                       curve_profile, curve_steps, interface_check_steps,
+                                       layer_curves, sizing_steps, solve_with_curves)
 from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, REQUIRED, Choice, InputRecord,
                                 InvalidInput, Items, Kind, MaterialField, Quantity, Record,
                                 ResultSpec, Text, Value, phrase)
@@ -166,8 +169,19 @@ PIPE_LAYER_FIELDS = (
     Text("name", "layer name", default=""),
     Quantity("thickness", "layer thickness", **THICKNESS),
     Quantity("conductivity", "thermal conductivity", default=REQUIRED, **CONDUCTIVITY),
-    ConductingMaterial("material", "material from the library", default=REQUIRED),
+    ConductivityCurveField("conductivity_curve", "conductivity against temperature, averaged "
+                           "over the layer's temperature range", default=REQUIRED),
+    InsulationMaterial("material", "material from the library (its conductivity curve where it "
+                       "has one)", default=REQUIRED),
     Text("source", "where the layer's data come from", default=""),
+)
+
+SIZE_LAYER_FIELDS = (
+    LayerName("layer", "the layer to size (its name)"),
+    Quantity("max_q_per_length", "largest heat flow per metre (its size)", default=REQUIRED,
+             unit="W/m", greater_than=0.0),
+    Quantity("max_surface_temperature", "largest outer surface temperature", default=REQUIRED,
+             unit="K", temperature=ABSOLUTE, greater_than=0.0),
 )
 
 
@@ -733,20 +747,31 @@ def _pipe_compute(inp, out):
     T_i, T_a = inp.inside_temperature, inp.ambient_temperature
     h_i = inp.inside_coefficient
     thicknesses = [layer["thickness"] for layer in inp.layers]
+    names = [_layer_name(layer, j) for j, layer in enumerate(inp.layers, start=1)]
+    curves = layer_curves(inp.layers)
     conductivities, sources = [], []
-    for j, layer in enumerate(inp.layers):
-        k, material_source = _conductivity(out, layer, f"layers[{j}]")
+    for j, (layer, curve) in enumerate(zip(inp.layers, curves)):
+        if curve is None:
+            k, material_source = _conductivity(out, layer, f"layers[{j}]")
+        else:  # its mean over the layer's range, recorded once the range is known
+            k, material_source = None, curve.source
         conductivities.append(k)
         sources.append(layer["source"] or material_source)
-    k_si = [k.si for k in conductivities]
+    # What the physics takes for each layer: a constant conductivity or a curve.
+    specs = [k.si if curve is None else curve.physics for k, curve in zip(conductivities, curves)]
 
-    still = None
-    if inp.surface_emissivity is not None:
-        still = pipe_in_still_air(inp.inner_diameter, thicknesses, k_si, T_i, T_a,
+    still = solved = None
+    if any(curves):
+        solved = solve_with_curves(out, inp, specs, curves, names)
+        flow = solved.flow
+        if inp.surface_emissivity is not None:
+            still = solved  # the same convection and radiation figures as pipe_in_still_air's
+    elif inp.surface_emissivity is not None:
+        still = pipe_in_still_air(inp.inner_diameter, thicknesses, specs, T_i, T_a,
                                   inp.surface_emissivity, h_i)
         flow = still.flow
     else:
-        flow = cylindrical_layers(inp.inner_diameter, thicknesses, k_si, T_i, T_a,
+        flow = cylindrical_layers(inp.inner_diameter, thicknesses, specs, T_i, T_a,
                                   inp.outside_coefficient, h_i)
     symbols = dict(_PIPE_SYMBOLS)
     T_i_value, T_a_value = out.input("inside_temperature"), out.input("ambient_temperature")
@@ -763,10 +788,16 @@ def _pipe_compute(inp, out):
     else:
         out.note("No inside coefficient given: the inner surface is taken at the inside "
                  "temperature (the inside film resistance is neglected).")
+    stated_surface = None
+    if solved is not None:
+        worked = curve_steps(out, inp, solved, curves, names, T_i_value, symbols)
+        for j, mean in worked["means"].items():
+            conductivities[j] = mean
+        stated_surface = worked["faces"].get(len(curves), (None, None))[1]
     previous = out.input("inner_diameter")
     diameters = [previous]
     for j, (layer, k, source) in enumerate(zip(inp.layers, conductivities, sources), start=1):
-        name = _layer_name(layer, j)
+        name = names[j - 1]
         D_j = out.step(f"D_{j}", f"D_{j - 1} + 2 * t_{j}",
                        {f"D_{j - 1}": previous, f"t_{j}": out.input(f"layers[{j - 1}].thickness")},
                        float(flow.diameters[j]), "m", display="mm", label=_layer_label(j, name),
@@ -784,7 +815,7 @@ def _pipe_compute(inp, out):
     D_n, n = diameters[-1], len(inp.layers)
 
     if still is not None:
-        h_o = _still_air_steps(out, inp, still, D_n, n, T_a_value, symbols)
+        h_o = _still_air_steps(out, inp, still, D_n, n, T_a_value, symbols, stated_surface)
     else:
         h_o = out.input("outside_coefficient")
         out.result("h_outside", h_o.si)
@@ -804,6 +835,8 @@ def _pipe_compute(inp, out):
     theta_s = out.step("theta_s", "T_a + q * R_o", {"T_a": T_a_value, "q": q, "R_o": R_o},
                        T_a + flow.q_per_length * R_o.si, label="Outer surface temperature",
                        source=RADIAL_SOURCE, yields="theta_surface", symbols=symbols)
+    if solved is not None:
+        interface_check_steps(out, inp, names, resistances, q, T_i_value, symbols)
     if flow.q_per_length < 0:
         out.note("The heat flow is negative: the pipe gains heat from the ambient.")
 
@@ -821,28 +854,25 @@ def _pipe_compute(inp, out):
             out.warn("The outer surface ({surface}) is below the dew point of the ambient air "
                      "({dew}): condensation on the insulation is expected.",
                      SATURATION_PRESSURE_SOURCE, surface=theta_s, dew=dew_value)
-    out.figure(_pipe_figure(out, inp, flow, k_si, dew))
+    if inp.size_layer is not None:
+        sizing_steps(out, inp, specs, curves, names, diameters, conductivities, resistances,
+                     T_i_value, T_a_value, h_o, symbols, CHURCHILL_CHU_SOURCE)
+    out.figure(_pipe_figure(out, inp, flow, conductivities, dew, curves))
 
 
-def _still_air_steps(out, inp, still, D_n: Value, n: int, T_a: Value, symbols: dict) -> Value:
+def _still_air_steps(out, inp, still, D_n: Value, n: int, T_a: Value, symbols: dict,
+                     T_s: Value | None = None) -> Value:
     """The outside coefficient of a horizontal pipe in still air: the surface temperature by
-    iteration (a statement), then the film temperature, the air's properties, Ra, Nu
-    (Churchill–Chu), h_c, h_r and their sum, each written out at the solved surface
-    temperature."""
+    iteration (a statement, unless ``T_s`` was stated already with the layers' conductivity
+    curves), then the film temperature, the air's properties, Ra, Nu (Churchill–Chu), h_c, h_r
+    and their sum, each written out at the solved surface temperature."""
     convection, T_s_si = still.convection, still.flow.theta_surface
     D = f"D_{n}"
     out.note("Outside coefficient: natural convection from a long horizontal cylinder in still "
              "air (Churchill–Chu) plus radiation to surroundings at the ambient temperature.",
              CHURCHILL_CHU_SOURCE)
-    T_s = out.statement(
-        "T_s", "the outer surface temperature at which the heat conducted through the layers "
-        "equals the heat leaving the surface by convection and radiation (h_o = h_c + h_r "
-        "below, each evaluated at T_s), found by iteration between the ambient temperature "
-        "{T_a} and the inside temperature {T_i} to within {tol}",
-        T_s_si, "K", temperature=ABSOLUTE,
-        values={"T_a": T_a, "T_i": out.input("inside_temperature"),
-                "tol": Value(_BRENT_TOLERANCE, "K", temperature=DIFFERENCE, given=True)},
-        label="Outer surface temperature (iteration)", source=BRENT_SOURCE, symbols=symbols)
+    if T_s is None:
+        T_s = _surface_statement(out, T_s_si, T_a, symbols)
     # The film temperature and the table rows are shown in K, as the table is written.
     T_f = out.step("T_f", "(T_s + T_a) / 2", {"T_s": T_s, "T_a": T_a},
                    convection.film_temperature, "K", temperature=ABSOLUTE, display="K",
@@ -890,18 +920,36 @@ def _still_air_steps(out, inp, still, D_n: Value, n: int, T_a: Value, symbols: d
                     label="Outside surface coefficient", yields="h_outside")
 
 
-def _pipe_figure(out, inp, flow, conductivities, dew) -> FigureData:
+def _surface_statement(out, T_s_si: float, T_a: Value, symbols: dict) -> Value:
+    """The outer surface temperature of a pipe in still air, found by iteration."""
+    return out.statement(
+        "T_s", "the outer surface temperature at which the heat conducted through the layers "
+        "equals the heat leaving the surface by convection and radiation (h_o = h_c + h_r "
+        "below, each evaluated at T_s), found by iteration between the ambient temperature "
+        "{T_a} and the inside temperature {T_i} to within {tol}",
+        T_s_si, "K", temperature=ABSOLUTE,
+        values={"T_a": T_a, "T_i": out.input("inside_temperature"),
+                "tol": Value(_BRENT_TOLERANCE, "K", temperature=DIFFERENCE, given=True)},
+        label="Outer surface temperature (iteration)", source=BRENT_SOURCE, symbols=symbols)
+
+
+def _pipe_figure(out, inp, flow, conductivities, dew, curves) -> FigureData:
     """The temperature through the layers against radius: within layer j it falls with ln r
-    (Fourier's law in a cylinder), T(r) = T_(j-1) − q' ln(r/r_(j-1)) / (2π k_j)."""
+    (Fourier's law in a cylinder), T(r) = T_(j-1) − q' ln(r/r_(j-1)) / (2π k_j); within a
+    layer with a conductivity curve, Φ(T) = ∫λ dT falls with ln r instead (Kirchhoff)."""
     radii = [float(d) / 2 for d in flow.diameters]
     temperatures = [float(t) for t in flow.interface_temperatures]
     q = flow.q_per_length
     span = radii[-1] - radii[0]
     bands, xs, ys = [], [], []
-    for j, (layer, k) in enumerate(zip(inp.layers, conductivities), start=1):
+    for j, (layer, k, curve) in enumerate(zip(inp.layers, conductivities, curves), start=1):
         r = np.geomspace(radii[j - 1], radii[j], 24)
         xs.extend(r.tolist())
-        ys.extend((temperatures[j - 1] - q * np.log(r / r[0]) / (2 * math.pi * k)).tolist())
+        if curve is None:
+            ys.extend((temperatures[j - 1] - q * np.log(r / r[0]) / (2 * math.pi * k.si))
+                      .tolist())
+        else:
+            ys.extend(curve_profile(curve, r[0], temperatures[j - 1], q, r.tolist()))
         wide = radii[j] - radii[j - 1] >= 0.08 * span
         bands.append(Band(radii[j - 1], radii[j], _layer_name(layer, j) if wide else "",
                           2 * (j % 2)))
@@ -909,10 +957,11 @@ def _pipe_figure(out, inp, flow, conductivities, dew) -> FigureData:
              Mark("y", inp.inside_temperature, "fluid inside", 3)]
     places = {"r0": Value(radii[0], "m", "mm"), "rn": Value(radii[-1], "m", "mm"),
               "ts": out.value_of("theta_surface"), "ta": out.input("ambient_temperature")}
+    shape = "logarithmic within each layer (Fourier's law in a cylinder" + (
+        "; in a layer with a conductivity curve, ∫λ dT is)" if any(curves) else ")")
     caption = ("Temperature through the pipe's layers against the radius from its axis (bore "
-               "radius {r0}, outer radius {rn}), logarithmic within each layer (Fourier's law in "
-               "a cylinder); the surface film lies between the outer surface at {ts} and the "
-               "ambient air at {ta}.")
+               "radius {r0}, outer radius {rn}), " + shape + "; the surface film lies between "
+               "the outer surface at {ts} and the ambient air at {ta}.")
     if dew is not None:
         marks.append(Mark("y", dew, "dew point of the ambient air", 2))
         places["dew"] = out.value_of("dew_point")
@@ -996,12 +1045,14 @@ CYLINDRICAL_LAYERS = Kind(
     title="Cylindrical layers, steady radial conduction",
     summary="Heat flow and surface temperature of an insulated pipe or duct; the outside "
             "coefficient given, or computed for a horizontal pipe in still air "
-            "(Churchill–Chu and radiation).",
+            "(Churchill–Chu and radiation); conductivity curves averaged over each layer "
+            "(EN ISO 12241); the thickness of one layer for a heat-flow or surface-temperature "
+            "target.",
     inputs=(
         Quantity("inner_diameter", "inner diameter of the first layer", unit="m",
                  greater_than=0.0, display="mm"),
         Items("layers", "layers from the inside outward", fields=PIPE_LAYER_FIELDS,
-              exactly_one=(("conductivity", "material"),), min_items=1),
+              exactly_one=(("conductivity", "conductivity_curve", "material"),), min_items=1),
         Quantity("length", "length of pipe", default="1 m", unit="m", greater_than=0.0),
         Quantity("inside_temperature", "temperature of the fluid inside", unit="K",
                  temperature=ABSOLUTE, greater_than=0.0),
@@ -1017,6 +1068,10 @@ CYLINDRICAL_LAYERS = Kind(
         Quantity("ambient_relative_humidity", "relative humidity of the ambient air (for the "
                  "condensation margin of a cold pipe)", default=None, unit="1", percent=True,
                  greater_than=0.0, at_most=1.0),
+        Record("size_layer", "find the smallest thickness of one layer that meets a maximum "
+               "heat flow per metre or a maximum surface temperature", default=None,
+               fields=SIZE_LAYER_FIELDS,
+               exactly_one=(("max_q_per_length", "max_surface_temperature"),)),
     ),
     results=(
         ResultSpec("outer_diameter", "m", "outer diameter of the last layer", display="mm"),
@@ -1028,6 +1083,8 @@ CYLINDRICAL_LAYERS = Kind(
         ResultSpec("dew_point", "K", "dew point of the ambient air", temperature=ABSOLUTE),
         ResultSpec("condensation_margin", "K", "outer surface temperature minus dew point",
                    temperature=DIFFERENCE),
+        ResultSpec("required_thickness", "m", "smallest thickness of the layer named in "
+                   "size_layer that meets its target, all else as given", display="mm"),
     ),
     compute=_pipe_compute,
     exactly_one=(("outside_coefficient", "surface_emissivity"),),
@@ -1035,12 +1092,15 @@ CYLINDRICAL_LAYERS = Kind(
     # Physics parameter names → inputs (inner_diameter, inside_temperature,
     # ambient_temperature, inside_coefficient and outside_coefficient are named alike).
     # emissivity: the still-air coefficient it asks for is outside Churchill–Chu's Ra_D range.
+    # A layer temperature outside its conductivity curve is located by the kind itself.
     input_names={"thicknesses": "layers[{index}].thickness",
                  "conductivities": "layers[{index}].conductivity",
                  "emissivity": "surface_emissivity",
                  "temperature": "ambient_temperature",
                  "air_temperature": "ambient_temperature",
-                 "relative_humidity": "ambient_relative_humidity"},
+                 "relative_humidity": "ambient_relative_humidity",
+                 "max_q_per_length": "size_layer.max_q_per_length",
+                 "max_surface_temperature": "size_layer.max_surface_temperature"},
     references=("Churchill and Chu (1975)",),
 )
 
