@@ -28,30 +28,32 @@ from conftest import write_project
 from test_redo import redo
 
 C = 273.15  # K at 0 °C (definition of the Celsius scale)
-DAY = 86400.0  # s
 ROOT = Path(__file__).resolve().parent.parent
 MONTHS = ("January", "February", "March", "April", "May", "June", "July", "August",
           "September", "October", "November", "December")
 
+
+def layer(name: str, thickness: str, R: float, s_d: float) -> str:
+    """A layer line of a sheet: thermal resistance and s_d as given."""
+    return (f"        - {{name: {name}, thickness: {thickness}, resistance: {R} m^2*K/W, "
+            f"equivalent_air_thickness: {s_d} m}}")
+
+
 # Wall A of tests/test_physics_glaser.py (invented): insulation R 2.5 m²K/W, s_d 0.1 m inside, a
 # board R 0.1 m²K/W, s_d 2.0 m outside; R_si 0.13, R_se 0.04 (ISO 6946:2017 Table 7, the
 # defaults for horizontal heat flow).
-WALL_A = """\
-        - {name: insulation, thickness: 100 mm, resistance: 2.5 m^2*K/W, equivalent_air_thickness: 0.1 m}
-        - {name: board, thickness: 10 mm, resistance: 0.1 m^2*K/W, equivalent_air_thickness: 2.0 m}"""
+WALL_A = "\n".join([layer("insulation", "100 mm", 2.5, 0.1), layer("board", "10 mm", 0.1, 2.0)])
 # Wall B (invented, the physics tests): as wall A with s_d 1.0 m inside and 20 m outside.
-WALL_B = WALL_A.replace("0.1 m}", "1.0 m}").replace("2.0 m}", "20 m}")
+WALL_B = "\n".join([layer("insulation", "100 mm", 2.5, 1.0), layer("board", "10 mm", 0.1, 20)])
 # Two condensation interfaces (the physics tests): insulation, membrane, insulation, board.
-WALL_TWO = """\
-        - {name: inner insulation, thickness: 50 mm, resistance: 1.5 m^2*K/W, equivalent_air_thickness: 0.1 m}
-        - {name: membrane, thickness: 1 mm, resistance: 0.05 m^2*K/W, equivalent_air_thickness: 1.0 m}
-        - {name: outer insulation, thickness: 40 mm, resistance: 1.0 m^2*K/W, equivalent_air_thickness: 0.1 m}
-        - {name: tight board, thickness: 10 mm, resistance: 0.1 m^2*K/W, equivalent_air_thickness: 5.0 m}"""
+WALL_TWO = "\n".join([layer("inner insulation", "50 mm", 1.5, 0.1),
+                      layer("membrane", "1 mm", 0.05, 1.0),
+                      layer("outer insulation", "40 mm", 1.0, 0.1),
+                      layer("tight board", "10 mm", 0.1, 5.0)])
 # A vapour control layer on the warm side (the physics tests; common practice).
-WALL_VCL = """\
-        - {name: lining, thickness: 15 mm, resistance: 0.06 m^2*K/W, equivalent_air_thickness: 100 m}
-        - {name: wool, thickness: 100 mm, resistance: 2.5 m^2*K/W, equivalent_air_thickness: 0.1 m}
-        - {name: breather board, thickness: 10 mm, resistance: 0.1 m^2*K/W, equivalent_air_thickness: 0.1 m}"""
+WALL_VCL = "\n".join([layer("lining", "15 mm", 0.06, 100), layer("wool", "100 mm", 2.5, 0.1),
+                      layer("breather board", "10 mm", 0.1, 0.1)])
+SLAB = layer("slab", "100 mm", 2.5, 1)
 
 
 def climate(outside_c, outside_phi=80, inside_c=20, inside_phi=50) -> str:
@@ -262,9 +264,7 @@ def test_thick_single_layer__condensation_inside_it_found_through_the_slices(eva
     # p_sat = 610.5·exp(17.269·4.494/241.794) = 841.6 Pa (Annex E); p_i = 0.7·2337.0 =
     # 1635.9 Pa, p_e = 610.5·exp(21.875·(−10)/255.5) = 259.3 Pa (over ice); the straight line
     # at mid-thickness is (1635.9 + 259.3)/2 = 947.6 Pa > 841.6 Pa: it would cross saturation.
-    layers = ("        - {name: slab, thickness: 100 mm, resistance: 2.5 m^2*K/W, "
-              "equivalent_air_thickness: 1 m}")
-    block = evaluate(sheet(layers, climate(-10, 100, 20, 70))).block("S.ic")
+    block = evaluate(sheet(SLAB, climate(-10, 100, 20, 70))).block("S.ic")
     r = results(block)
     assert r["max_accumulated"] > 0 and r["dries_out"] == 0
     steps = raw(block)
@@ -276,9 +276,8 @@ def test_thick_single_layer__condensation_inside_it_found_through_the_slices(eva
 
 
 def test_too_many_slices__refused_where_the_layer_is_written(tmp_path, capsys):
-    layers = ("        - {name: block of foam, thickness: 2 m, resistance: 60 m^2*K/W, "
-              "equivalent_air_thickness: 10 m}")
-    status, err = run_build(tmp_path, capsys, sheet(layers, climate(0)))
+    status, err = run_build(tmp_path, capsys,
+                            sheet(layer("block of foam", "2 m", 60, 10), climate(0)))
     assert status == 2
     assert err[0] == (
         f"proj/sheets/s.yaml:8:44: error: S.ic.inputs.layers[0]: the element divides into 240 "
@@ -296,7 +295,8 @@ def test_library_vapour_properties__mu_times_d_a_given_mu_wins_and_a_membrane_s_
         - {name: board, thickness: 12.5 mm, material: gypsum_plasterboard}
         - {name: wool, thickness: 100 mm, material: mineral_wool, vapour_resistance_factor: 3}
         - {name: membrane, thickness: 0.5 mm, material: breather_membrane}
-        - {name: cladding, thickness: 20 mm, conductivity: 0.13 W/(m*K), vapour_resistance_factor: 50}"""
+        - {name: cladding, thickness: 20 mm, conductivity: 0.13 W/(m*K),
+           vapour_resistance_factor: 50}"""
     block = evaluate(sheet(layers, A_YEAR)).block("S.ic")
     steps = raw(block)
     assert steps["s_d_1"].result.si == pytest.approx(0.125)  # 10 · 12.5 mm
@@ -318,8 +318,7 @@ def test_library_vapour_properties__mu_times_d_a_given_mu_wins_and_a_membrane_s_
     (WALL_B, climate([0] * 3 + [10] * 7 + [0] * 2)),
     (WALL_TWO, climate(0)),
     (WALL_VCL, climate([-5, -4, 0, 5, 10, 15, 15, 15, 10, 5, 0, -3], 90)),
-    ("        - {name: slab, thickness: 100 mm, resistance: 2.5 m^2*K/W, "
-     "equivalent_air_thickness: 1 m}", climate(-10, 100, 20, 70)),
+    (SLAB, climate(-10, 100, 20, 70)),
 ])
 def test_every_printed_step_redoes_from_its_printed_numbers(evaluate, layers, rows):
     block = evaluate(sheet(layers, rows)).block("S.ic")
