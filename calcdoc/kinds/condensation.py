@@ -154,10 +154,12 @@ LAYER_FIELDS = (
              default=REQUIRED, unit="m^2*K/W", greater_than=0.0),
     ConductingMaterial("material", "material from the library (may carry μ or s_d)",
                        default=REQUIRED),
-    Quantity("vapour_resistance_factor", "water vapour resistance factor μ (in place of the "
-             "material's)", default=None, unit="1", at_least=1.0),
-    Quantity("equivalent_air_thickness", "equivalent air thickness s_d of a sheet (in place of "
-             "the material's)", default=None, unit="m", greater_than=0.0),
+    Quantity("vapour_resistance_factor", "water vapour resistance factor μ: this or s_d unless "
+             "the material carries one, and then in place of the material's", default=None,
+             unit="1", at_least=1.0),
+    Quantity("equivalent_air_thickness", "equivalent air thickness s_d (a sheet's declared "
+             "value): this or μ unless the material carries one", default=None, unit="m",
+             greater_than=0.0),
     Text("source", "where the layer's data come from", default=""),
 )
 
