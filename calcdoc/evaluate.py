@@ -358,4 +358,5 @@ def _check(check, spec: BlockSpec, out: BlockOutput, project: Project, errors):
         utilisation = value / limit if check.relation == "at_most" else (
             limit / value if value > 0 else math.inf)
     return CheckResult(check.result, check.relation, value, limit, declared.unit, margin,
-                       utilisation, margin >= 0, source, shown, declared.temperature)
+                       utilisation, margin >= 0, source, shown, declared.temperature,
+                       whole=declared.whole)

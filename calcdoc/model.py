@@ -137,6 +137,7 @@ class CheckResult:
     display_unit: str | None = None
     temperature: str | None = None
     note: Any = None  # a Phrase: why the value does not exist
+    whole: bool = False  # a whole-number result (a month, 1/0): printed as a whole number
 
 
 @dataclass

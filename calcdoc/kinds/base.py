@@ -740,7 +740,9 @@ class Inputs(dict):
 
 @dataclass(frozen=True)
 class ResultSpec:
-    """One declared result: name, coherent SI unit, meaning; ``list`` for list results."""
+    """One declared result: name, coherent SI unit, meaning; ``list`` for list results;
+    ``whole`` for a result that is a whole number by definition (a month 1–12, a yes/no as 1/0),
+    printed as such rather than to the project's significant figures."""
 
     name: str
     unit: str
@@ -748,6 +750,7 @@ class ResultSpec:
     temperature: str | None = None
     display: str | None = None
     list: bool = False
+    whole: bool = False
 
     def display_unit(self, system: str = "SI") -> str:
         return display_unit_for(self.unit, self.display, self.temperature, system)
@@ -816,7 +819,8 @@ class BlockOutput:
     def value_of(self, name: str) -> Value:
         """Return a recorded result as a :class:`Value`, to use as an operand of a later step."""
         r = self.results[name]
-        return Value(r.value, r.spec.unit, self.display_unit(name), r.spec.temperature)
+        return Value(r.value, r.spec.unit, self.display_unit(name), r.spec.temperature,
+                     given=r.spec.whole)
 
     def not_reached(self, name: str, why: str, **values):
         """Record that a result does not exist (e.g. a time not reached) and why, in words."""
@@ -857,8 +861,9 @@ class BlockOutput:
             spec = self._declared[yields]
             unit, temperature = spec.unit, spec.temperature
             display = self.display_unit(yields) or display
+        whole = yields is not None and self._declared[yields].whole
         result = Value(value if isinstance(value, (list, tuple)) else float(value), unit,
-                       display, temperature)
+                       display, temperature, given=whole)
         if not isinstance(value, (list, tuple)):
             try:
                 again = evaluate_float(tree, {k: v.si for k, v in operands.items()})
@@ -885,8 +890,9 @@ class BlockOutput:
             spec = self._declared[yields]
             unit, temperature = spec.unit, spec.temperature
             display = self.display_unit(yields) or display
+        whole = yields is not None and self._declared[yields].whole
         result = Value(value if isinstance(value, (list, tuple)) else float(value), unit,
-                       display, temperature)
+                       display, temperature, given=whole)
         self.steps.append(Step(name, result, None, {}, phrase(text, **(values or {})), label,
                                source, yields, dict(symbols or {}), group, item))
         return result

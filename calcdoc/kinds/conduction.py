@@ -192,7 +192,7 @@ def _layer_name(layer, j: int) -> str:
     return layer["name"] or f"layer {j}"
 
 
-def _conductivity(out, record, path: str) -> tuple[Value, str]:
+def layer_conductivity(out, record, path: str) -> tuple[Value, str]:
     """The conductivity of a layer or bridge as an operand, and the source of a library value:
     an input prints as written, a library value in full."""
     material = record.get("material")
@@ -219,7 +219,7 @@ def _celsius_number(T: float, given: bool = False) -> Value:
 def _wall_compute(inp, out):
     theta_i, theta_e = inp.inside_temperature, inp.outside_temperature
     T_i, T_e = out.input("inside_temperature"), out.input("outside_temperature")
-    R_si, R_se = _surface_resistance_steps(inp, out)
+    R_si, R_se = surface_resistance_steps(inp, out)
     r_si, r_se = R_si.si, R_se.si
 
     layers = [_layer_steps(out, layer, j) for j, layer in enumerate(inp.layers, start=1)]
@@ -264,7 +264,7 @@ def _wall_compute(inp, out):
     out.figure(_wall_figure(out, inp, layers, temperatures, surface))
 
 
-def _surface_resistance_steps(inp, out) -> tuple[Value, Value]:
+def surface_resistance_steps(inp, out) -> tuple[Value, Value]:
     """State where each surface resistance comes from; return them as operands (inputs as
     written or table values in full)."""
     table_si, table_se = surface_resistances(inp.heat_flow)
@@ -301,7 +301,7 @@ def _layer_steps(out, layer, j: int) -> dict:
                  "the drawing only.", layer["source"], j=Value(j, given=True), name=Value(name),
                  d=d)
     else:
-        lam, material_source = _conductivity(out, layer, path)
+        lam, material_source = layer_conductivity(out, layer, path)
         value = float(layer_resistance(layer["thickness"], lam.si))
         entry["R"] = out.step(f"R_{j}", f"d_{j} / lambda_{j}", {f"d_{j}": d, f"lambda_{j}": lam},
                               value, "m^2*K/W", label=_layer_label(j, name),
@@ -310,7 +310,7 @@ def _layer_steps(out, layer, j: int) -> dict:
     bridge = layer["bridge"]
     if bridge is not None:
         bridge_name = bridge["name"] or "bridge"
-        lam_b, material_source = _conductivity(out, bridge, f"{path}.bridge")
+        lam_b, material_source = layer_conductivity(out, bridge, f"{path}.bridge")
         value = float(layer_resistance(layer["thickness"], lam_b.si))
         R_b = out.step(f"R_{j}_b", f"d_{j} / lambda_{j}_b", {f"d_{j}": d, f"lambda_{j}_b": lam_b},
                        value, "m^2*K/W",
@@ -752,7 +752,7 @@ def _pipe_compute(inp, out):
     conductivities, sources = [], []
     for j, (layer, curve) in enumerate(zip(inp.layers, curves)):
         if curve is None:
-            k, material_source = _conductivity(out, layer, f"layers[{j}]")
+            k, material_source = layer_conductivity(out, layer, f"layers[{j}]")
         else:  # its mean over the layer's range, recorded once the range is known
             k, material_source = None, curve.source
         conductivities.append(k)

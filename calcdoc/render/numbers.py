@@ -130,7 +130,7 @@ def format_number(value: float, sig: int = 3) -> str:
         if float(mantissa) in (10.0, -10.0):
             magnitude += 1
             mantissa = f"{value / 10 ** magnitude:.{max(sig - 1, 0)}f}"
-        return f"{mantissa}×10{str(magnitude).translate(_SUPERSCRIPT)}"
+        return f"{mantissa.replace('-', '−')}×10{str(magnitude).translate(_SUPERSCRIPT)}"
     decimals = max(sig - 1 - magnitude, 0)
     text = f"{round(value, decimals):.{decimals}f}"
     if text.startswith("-") and float(text) == 0:

@@ -265,10 +265,13 @@ def print_check(check, sig: int, system: str = "SI") -> PrintedCheck:
     check that looks equal fails)."""
     note = fill(check.note, sig, system) if check.note is not None else ""
     difference = check.temperature is not None
-    limit_value = Value(check.limit_si, check.si_unit, check.display_unit, check.temperature)
+    whole = getattr(check, "whole", False)
+    limit_value = Value(check.limit_si, check.si_unit, check.display_unit, check.temperature,
+                        given=whole)
     if check.value_si is None:
         return PrintedCheck(note, print_value(limit_value, sig, system).text, "—", "—", note)
-    value = Value(check.value_si, check.si_unit, check.display_unit, check.temperature)
+    value = Value(check.value_si, check.si_unit, check.display_unit, check.temperature,
+                  given=whole)
     digits = sig
     value_text = print_value(value, digits, system).text
     limit_text = print_value(limit_value, digits, system).text
@@ -279,7 +282,7 @@ def print_check(check, sig: int, system: str = "SI") -> PrintedCheck:
     # A temperature margin is a difference, in K (°F difference under US units).
     margin_value = Value(check.margin_si, "K" if difference else check.si_unit,
                          None if difference else check.display_unit,
-                         DIFFERENCE if difference else None)
+                         DIFFERENCE if difference else None, given=whole)
     utilisation = "—" if check.utilisation is None or math.isinf(check.utilisation) else \
         f"{check.utilisation:.2f}"
     return PrintedCheck(value_text, limit_text, print_value(margin_value, digits, system).text,
