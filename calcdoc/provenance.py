@@ -1,7 +1,8 @@
 """Which values in a package are not yet confirmed against their printed source.
 
 A library value recalled rather than read from its document is marked as data: a material
-property with ``confirmed: false``, or a :class:`~calcdoc.references.Cite` with
+property with ``confirmed: false``, a rolled section of the catalogue (calcdoc/materials/
+sections.yaml) with ``confirmed: false``, or a :class:`~calcdoc.references.Cite` with
 ``confirmed=False`` in a kind's source. The package lists every such value it uses under "Values
 to confirm", with the document and table to check it against, and ``build --final`` refuses
 while one is unconfirmed. A project confirms a value by giving its own (in its materials.yaml,
@@ -59,6 +60,24 @@ def _origins(block) -> list[str]:
     return found
 
 
+_SECTION_ORIGIN = "sections."
+
+
+def _add_section(add, origin: str, block_key: str) -> None:
+    """List a catalogue section a block's working uses, once for its five dimensions, while
+    its catalogue entry is not confirmed ('sections.DESIGNATION.DIMENSION')."""
+    from calcdoc.physics.sections import load_section_catalogue
+    designation = origin[len(_SECTION_ORIGIN):].rsplit(".", 1)[0]
+    section = load_section_catalogue().get(designation)
+    if section is None or section.confirmed:
+        return
+    mm = [f"{symbol} {getattr(section, key) * 1e3:g}" for symbol, key in (
+        ("h", "height"), ("b", "width"), ("t_w", "web_thickness"), ("t_f", "flange_thickness"),
+        ("r", "root_radius"))]
+    add(f"sections.{designation}", f"rolled section {designation}: dimensions",
+        ", ".join(mm) + " (mm)", section.dimension_source, block_key)
+
+
 def values_to_confirm(package) -> list[ToConfirm]:
     """Return every unconfirmed value the package uses, in the order first used, each with the
     project's confirmation where it has recorded one."""
@@ -76,6 +95,9 @@ def values_to_confirm(package) -> list[ToConfirm]:
         for block in sheet.blocks:
             # The library values a block's working uses: its steps' operands say so.
             for origin in _origins(block):
+                if origin.startswith(_SECTION_ORIGIN):
+                    _add_section(add, origin, block.key)
+                    continue
                 _, name, prop = origin.split(".", 2)
                 entry = project.materials.get(name, {})
                 cited = entry.get("sources", {}).get(prop, {})

@@ -132,8 +132,9 @@ _DIMENSION_NAMES = {
     "W/(m*K)": "thermal conductivity", "m^2*K/W": "thermal resistance",
     "W/(m^2*K)": "heat transfer coefficient", "m*K/W": "thermal resistance per length",
     "kg/m^3": "density", "J/(kg*K)": "specific heat capacity", "1/m": "inverse length",
-    "Pa": "pressure", "J/m^2": "energy per area", "J/(m^2*s^0.5*K)": "thermal inertia",
-    "m^0.5": "square root of length", "J": "energy", "m^2/s": "diffusivity",
+    "Pa": "pressure or stress", "J/m^2": "energy per area", "J/(m^2*s^0.5*K)": "thermal inertia",
+    "m^0.5": "square root of length", "J": "energy or moment", "m^2/s": "diffusivity",
+    "m/s": "speed",
 }
 
 

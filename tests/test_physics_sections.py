@@ -15,6 +15,7 @@ from calcdoc.physics import PhysicsRangeError, sections
 from calcdoc.physics.sections import (
     box_perimeter,
     box_section_factor,
+    closest_sections,
     i_section_area,
     i_section_factors,
     i_section_perimeter,
@@ -129,6 +130,16 @@ def test_shadow_factor__eq_4_26a_by_hand():
     assert shadow_factor(200.0, 120.0) == pytest.approx(0.54, abs=1e-12)
 
 
+def test_shadow_factor__eq_4_26b_without_the_0_9_for_other_fires():
+    # k_sh = [Am/V]_b / [Am/V] = 120 / 200 = 0.6 (EN 1993-1-2:2005 eq. 4.26b, from memory:
+    # every case other than an I-section under a nominal fire)
+    assert shadow_factor(200.0, 120.0, nominal_fire=False) == pytest.approx(0.6, abs=1e-12)
+    # IPE 300 four sided, other fire: 900 / 1160.05 = 0.7758 (hand calculation above)
+    dims = (0.300, 0.150, 0.0071, 0.0107, 0.015)
+    assert i_section_factors(*dims, nominal_fire=False).shadow_factor == pytest.approx(
+        0.7758, abs=1e-4)
+
+
 def test_box_perimeter__four_sided_2_b_plus_h_three_sided_b_plus_2h():
     # EN 1993-1-2:2005 Table 4.2, box values: 2(b + h) and b + 2h.
     assert box_perimeter(0.4, 0.2) == pytest.approx(1.2)
@@ -183,6 +194,27 @@ def test_rolled_section__unknown_designation_refused_with_closest_names():
         rolled_section("IPE 310")
     assert caught.value.quantity == "profile"
     assert "IPE 300" in caught.value.expected
+
+
+@pytest.mark.parametrize("mistyped, closest", [
+    ("IPE 310", ["IPE 300", "IPE 330", "IPE 360"]),   # nearest sizes first among equals
+    ("UB 356x171x50", ["UB 356x171x51", "UB 356x171x45", "UB 356x171x57"]),
+    ("heb210", ["HEB 200", "HEB 220", "HEB 180"]),
+])
+def test_closest_sections__nearest_designations_first(mistyped, closest):
+    assert closest_sections(mistyped) == closest
+
+
+def test_closest_sections__nothing_close_gives_none():
+    assert closest_sections("W12x26") == []  # an American designation, not in the catalogue
+
+
+def test_dimension_source__the_tables_that_give_the_dimensions():
+    # IPE: the Euronorm / EN 10365 part; the sales programme's A and A_L table is left out.
+    assert rolled_section("IPE 300").dimension_source == (
+        "Euronorm 19-57 and EN 10365:2017, IPE dimensions and sectional area")
+    assert rolled_section("UB 356x171x51").dimension_source.startswith(
+        "BS 4-1:2005, universal beam dimensions")
 
 
 def test_rolled_section__dimensions_in_metres():

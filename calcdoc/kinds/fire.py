@@ -10,7 +10,9 @@ here, with :func:`exposure_duration`, :func:`fire_convection`, :func:`fire_descr
 Both kinds record data only (:mod:`calcdoc.data`): each curve's equation is a step at a
 characteristic time, Annex A's quantities are steps, the steel heating shows its first explicit
 increment with the numbers, and what a stepped solution gives (a time to a temperature, a
-maximum) is a statement. Figures are :class:`~calcdoc.data.FigureData`.
+maximum) is a statement. A steel member given by its ``section`` rather than its section factor
+first works out the section factor and the shadow factor as steps (``_steel_section``).
+Figures are :class:`~calcdoc.data.FigureData`.
 """
 
 from __future__ import annotations
@@ -24,12 +26,16 @@ import numpy as np
 from calcdoc.data import (ABSOLUTE, DIFFERENCE, Axis, FigureData, Line, Mark, Phrase, Point,
                           Value, phrase)
 from calcdoc.errors import InputError, MissingInput
+from calcdoc.kinds._steel_section import SECTION_INPUT_NAMES, SectionFactors, section_steps
+from calcdoc.kinds._steel_section import section_input
 from calcdoc.kinds.base import (Choice, Field, InputRecord, InvalidInput, Kind, MaterialField,
                                 Quantity, Record, ResultSpec, Text, did_you_mean)
 from calcdoc.located import plain
 from calcdoc.physics import MAX_DURATION
 from calcdoc.physics.firecurves import (AMBIENT_TEMPERATURE, DEFAULT_DURATION, NAMED_FIRES,
                                         FireCurve, named_fire, parametric_fire, tabulated_fire)
+from calcdoc.physics.sections import ENCASEMENTS
+from calcdoc.physics.sections import EXPOSURES as SECTION_EXPOSURES
 from calcdoc.physics.steel import (MINIMUM_UTILISATION, PROTECTED_MAX_TIME_STEP, STEEL_DENSITY,
                                    UNPROTECTED_MAX_TIME_STEP,
                                    critical_temperature_from_utilisation, net_heat_flux,
@@ -761,12 +767,12 @@ def _first_step_common(out, run):
     return theta_a, theta_g, _operand(out, "time_step", dt, "s")
 
 
-def _unprotected_first_step(inp, out, run, alpha: float):
+def _unprotected_first_step(inp, out, run, alpha: float, factors):
     theta_a, theta_g, dt = _first_step_common(out, run)
     c_a = _specific_heat_step(out, theta_a.si)
-    factor = out.step("k_sh_A_m_V", "k_sh * A_m_V",
-                      {"k_sh": out.input("shadow_factor"), "A_m_V": out.input("section_factor")},
-                      inp.shadow_factor * inp.section_factor, "1/m",
+    am_v, k_sh = factors.section_factor, factors.shadow_factor
+    factor = out.step("k_sh_A_m_V", "k_sh * A_m_V", {"k_sh": k_sh, "A_m_V": am_v},
+                      k_sh.si * am_v.si, "1/m",
                       label="Section factor with the shadow effect",
                       source=f"{_UNPROTECTED_CLAUSE}, eq. (4.25)", symbols=_STEEL_SYMBOLS)
     h_net = net_heat_flux(theta_g.si, theta_a.si, alpha, inp.emissivity_member,
@@ -781,8 +787,8 @@ def _unprotected_first_step(inp, out, run, alpha: float):
         label=phrase("Net heat flux into the member at the start of the first step, t = {t}, "
                      "θg from the fire's curve", t=_time(run.time[0], True)),
         source="EN 1991-1-2:2002 §3.1, eqs. (3.1)–(3.3)", symbols=_STEEL_SYMBOLS)
-    delta = unprotected_temperature_increment(theta_g.si, theta_a.si, inp.section_factor, alpha,
-                                              dt.si, inp.shadow_factor, inp.emissivity_member,
+    delta = unprotected_temperature_increment(theta_g.si, theta_a.si, am_v.si, alpha,
+                                              dt.si, k_sh.si, inp.emissivity_member,
                                               inp.emissivity_fire, inp.configuration_factor)
     delta = out.step("Delta_theta_a_t", "k_sh_A_m_V / (c_a * rho_a) * h_net * Delta_t",
                      {"k_sh_A_m_V": factor, "c_a": c_a,
@@ -793,7 +799,7 @@ def _unprotected_first_step(inp, out, run, alpha: float):
     _next_temperature(out, run, theta_a, delta, _UNPROTECTED_CLAUSE)
 
 
-def _protected_first_step(inp, out, run, protection: dict):
+def _protected_first_step(inp, out, run, protection: dict, factors):
     theta_a, theta_g, dt = _first_step_common(out, run)
     theta_g_1 = _kelvin(run.gas_temperature[1])
     c_a = _specific_heat_step(out, theta_a.si)
@@ -808,12 +814,12 @@ def _protected_first_step(inp, out, run, protection: dict):
         return _operand(out, f"protection.{key}", si, unit)
     lambda_p, rho_p, c_p = (prop("conductivity", "W/(m*K)"), prop("density", "kg/m^3"),
                             prop("specific_heat", "J/(kg*K)"))
-    a_p_v = out.input("section_factor")
+    a_p_v = factors.section_factor
     rho_a = Value(STEEL_DENSITY, "kg/m^3", given=True)
     phi = out.step("phi", "c_p * rho_p / (c_a * rho_a) * d_p * A_p_V",
                    {"c_p": c_p, "rho_p": rho_p, "c_a": c_a, "rho_a": rho_a, "d_p": thickness,
                     "A_p_V": a_p_v},
-                   protection_capacity_ratio(inp.section_factor, thickness.si, rho_p.si, c_p.si,
+                   protection_capacity_ratio(a_p_v.si, thickness.si, rho_p.si, c_p.si,
                                              c_a.si), label="Heat capacity of the protection "
                                                             "relative to the steel",
                    source=f"{_PROTECTED_CLAUSE}, eq. (4.28)", symbols=_STEEL_SYMBOLS)
@@ -825,7 +831,7 @@ def _protected_first_step(inp, out, run, protection: dict):
                                     t0=_time(run.time[0], True), t1=_time(run.time[1], True)),
                        source=f"{_PROTECTED_CLAUSE}, eq. (4.27)", symbols=_STEEL_SYMBOLS)
     raw = protected_temperature_increment(theta_g.si, theta_g_1.si, theta_a.si,
-                                          inp.section_factor, thickness.si, lambda_p.si,
+                                          a_p_v.si, thickness.si, lambda_p.si,
                                           rho_p.si, c_p.si, dt.si, no_fall_while_heating=False)
     delta = out.step(
         "Delta_theta_a_t", "lambda_p * A_p_V * (theta_g - theta_a) / (d_p * c_a * rho_a * "
@@ -898,6 +904,37 @@ def _stepped_results(inp, out, run, theta_cr: float, duration: float, clause: st
     return t_cr
 
 
+def _member_factors(inp, out, fire: FireCurve, protected: bool) -> SectionFactors:
+    """Return the section factor and the shadow factor the heating uses: as given, or worked
+    out from the member's section (FORMAT.md, steel_member_heating — additions)."""
+    if inp.section is None:
+        for name in ("exposure", "encasement"):
+            if inp[name] is not None:
+                raise _input_error(out, name, f"input '{name}' applies only to a member given "
+                                   "by its section", "'section' in place of 'section_factor' "
+                                   "(FORMAT.md, steel_member_heating)", "")
+        section_factor = out.input("section_factor")
+        if protected:
+            return SectionFactors(section_factor, None)
+        if inp.shadow_factor is None:
+            out.note("Shadow factor k_sh = 1: the shadow effect is not taken into account, which "
+                     "is on the safe side.", "EN 1993-1-2:2005 §4.2.5.1(2)")
+            return SectionFactors(section_factor, Value(1.0, given=True))
+        return SectionFactors(section_factor, out.input("shadow_factor"))
+    if inp.exposure is None:
+        raise MissingInput("exposure", "four_sided | three_sided for a member given by its "
+                           "section (EN 1993-1-2:2005 Table 4.2)")
+    if protected and inp.encasement is None:
+        raise MissingInput("encasement", "contour | box for a protected member given by its "
+                           "section (EN 1993-1-2:2005 Table 4.2)")
+    if not protected and inp.encasement is not None:
+        raise _input_error(out, "encasement", "input 'encasement' applies only to a protected "
+                           "member", "a 'protection' with it (FORMAT.md, steel_member_heating)",
+                           "")
+    return section_steps(out, inp.section, inp.exposure, inp.encasement, inp.shadow_factor,
+                         nominal_fire=fire.name in NAMED_FIRES)
+
+
 def _compute_steel(inp, out):
     fire: FireCurve = inp.fire
     duration = exposure_duration(inp.duration, fire)
@@ -913,21 +950,22 @@ def _compute_steel(inp, out):
     protected = protection is not None
     clause = _PROTECTED_CLAUSE if protected else _UNPROTECTED_CLAUSE
 
+    factors = _member_factors(inp, out, fire, protected)
     theta_cr = _critical_temperature(inp, out).si
     if protected:
         time_step = inp.time_step if inp.time_step is not None else PROTECTED_MAX_TIME_STEP
-        run = protected_steel_heating(fire, duration, inp.section_factor,
+        run = protected_steel_heating(fire, duration, factors.section_factor.si,
                                       protection["thickness"], protection["conductivity"],
                                       protection["density"], protection["specific_heat"],
                                       time_step, inp.initial_temperature)
-        _protected_first_step(inp, out, run, protection)
+        _protected_first_step(inp, out, run, protection, factors)
     else:
         time_step = inp.time_step if inp.time_step is not None else UNPROTECTED_MAX_TIME_STEP
-        run = unprotected_steel_heating(fire, duration, inp.section_factor, alpha,
-                                        inp.shadow_factor, inp.emissivity_member,
+        run = unprotected_steel_heating(fire, duration, factors.section_factor.si, alpha,
+                                        factors.shadow_factor.si, inp.emissivity_member,
                                         inp.emissivity_fire, inp.configuration_factor,
                                         time_step, inp.initial_temperature)
-        _unprotected_first_step(inp, out, run, alpha)
+        _unprotected_first_step(inp, out, run, alpha, factors)
     out.simulated_until = duration
     t_cr = _stepped_results(inp, out, run, theta_cr, duration, clause)
 
@@ -1005,16 +1043,27 @@ STEEL_MEMBER_HEATING = Kind(
     name="steel_member_heating",
     title="Steel member heating",
     summary="Lumped steel temperature in a fire, unprotected (EN 1993-1-2 eq. 4.25) or "
-            "protected (eq. 4.27), against a critical temperature.",
+            "protected (eq. 4.27), against a critical temperature; the section factor given, "
+            "or worked out from an I-section (Table 4.2).",
     inputs=(
         FireField("fire", "the fire the member is exposed to"),
         Quantity("duration", "exposure duration (default: the fire's)", default=None, unit="s",
                  greater_than=0.0, at_most=MAX_DURATION, display="min"),
         Quantity("section_factor", "section factor Am/V (unprotected) or Ap/V (protected), at "
                  "least 10 m⁻¹ (EN 1993-1-2 §4.2.5.1)", unit="1/m", at_least=10.0),
-        Quantity("shadow_factor", "shadow factor k_sh (unprotected)", default="1",
-                 source="EN 1993-1-2:2005 §4.2.5.1, eq. (4.26): 1 ignores the shadow effect, "
-                        "which is conservative", greater_than=0.0, at_most=1.0),
+        section_input("the member's section, in place of section_factor: {shape: i_section, "
+                      "height, width, web_thickness, flange_thickness, root_radius} or "
+                      "{profile: DESIGNATION} from calcdoc's catalogue of rolled sections"),
+        Choice("exposure", "with section: sides exposed to the fire, three_sided when the top "
+               "face of the top flange lies against a slab (EN 1993-1-2:2005 Table 4.2)",
+               default=None, options=SECTION_EXPOSURES),
+        Choice("encasement", "with section and protection: the protection follows the "
+               "profile (contour) or encloses it (box) (EN 1993-1-2:2005 Table 4.2)",
+               default=None, options=ENCASEMENTS),
+        Quantity("shadow_factor", "shadow factor k_sh (unprotected); if omitted: 1 with "
+                 "section_factor (the shadow effect ignored, on the safe side), eq. (4.26a) or "
+                 "(4.26b) of EN 1993-1-2:2005 with section", default=None, greater_than=0.0,
+                 at_most=1.0),
         _ProtectionField("protection", "fire protection: {thickness, conductivity, density, "
                          "specific_heat} or {material, thickness}", default=None,
                          fields=_PROTECTION_FIELDS,
@@ -1051,9 +1100,16 @@ STEEL_MEMBER_HEATING = Kind(
                    temperature=ABSOLUTE),
         ResultSpec("theta_max", "K", "highest steel temperature within the duration",
                    temperature=ABSOLUTE),
+        ResultSpec("section_factor", "1/m", "with section: the section factor used, Am/V "
+                   "(unprotected) or Ap/V (protected)"),
+        ResultSpec("box_section_factor", "1/m", "with section: box value [Am/V]b"),
+        ResultSpec("shadow_factor", "1", "with section, unprotected: shadow factor k_sh"),
+        ResultSpec("area", "m^2", "with section: cross-section area A", display="cm^2"),
+        ResultSpec("perimeter", "m", "with section: the exposed perimeter that gives the "
+                   "section factor (contour, or the box for a box encasement)"),
     ),
     compute=_compute_steel,
-    exactly_one=(("critical_temperature", "utilisation"),),
+    exactly_one=(("section_factor", "section"), ("critical_temperature", "utilisation")),
     caution=FIRE_CAUTION + " The lumped method gives one uniform steel temperature; the "
             "critical temperature, the section factor and the protection product's assessed "
             "properties are the engineer's to confirm.",
@@ -1064,7 +1120,7 @@ STEEL_MEMBER_HEATING = Kind(
                  "protection_density": "protection.density",
                  "protection_specific_heat": "protection.specific_heat",
                  "t": "duration", "at": "required_resistance", "gas_temperature": "fire",
-                 "gas_temperature_next": "fire"},
+                 "gas_temperature_next": "fire", **SECTION_INPUT_NAMES},
     references=("EN 1993-1-2:2005", "EN 1991-1-2:2002", "EN 13381-4"),
 )
 

@@ -41,6 +41,7 @@ __all__ = [
     "CATALOGUE_PATH",
     "load_section_catalogue",
     "rolled_section",
+    "closest_sections",
 ]
 
 #: Sides of an I-section exposed to the fire (docs/format.md, steel_member_heating).
@@ -322,11 +323,13 @@ def box_section_factor(height: float, width: float, web_thickness: float, flange
                           "box")
 
 
-def shadow_factor(section_factor_value: float, box_section_factor_value: float) -> float:
+def shadow_factor(section_factor_value: float, box_section_factor_value: float,
+                  nominal_fire: bool = True) -> float:
     r"""Return the correction factor for the shadow effect k_sh [-] of an unprotected I-section.
 
     .. math::
-        k_{sh} = 0.9\,\frac{[A_m/V]_b}{A_m/V}
+        k_{sh} = 0.9\,\frac{[A_m/V]_b}{A_m/V}\ \text{(nominal fire)}, \qquad
+        k_{sh} = \frac{[A_m/V]_b}{A_m/V}\ \text{(other fires)}
 
     Parameters
     ----------
@@ -334,26 +337,31 @@ def shadow_factor(section_factor_value: float, box_section_factor_value: float) 
         Am/V [1/m], > 0.
     box_section_factor_value : float
         [Am/V]_b [1/m], > 0, not more than Am/V.
+    nominal_fire : bool
+        True under a nominal fire (the standard, external or hydrocarbon curve, EN 1991-1-2
+        §3.2): eq. (4.26a); False under any other fire: eq. (4.26b).
 
     Returns
     -------
     float
-        k_sh [-], <= 0.9.
+        k_sh [-], <= 0.9 (nominal fire) or <= 1.
 
     Notes
     -----
-    Eq. (4.26a) holds for I-sections under nominal fire actions (the standard fire among them); for
-    other cross-sections eq. (4.26b), k_sh = [Am/V]_b/[Am/V], applies, and k_sh = 1 is always on the
+    Eq. (4.26a) holds for I-sections under nominal fire actions (the standard fire among them); in
+    all other cases eq. (4.26b), k_sh = [Am/V]_b/[Am/V], applies, and k_sh = 1 is always on the
     safe side. The box of a convex outline cannot exceed its contour, so [Am/V]_b > Am/V is refused.
 
     Examples
     --------
     >>> shadow_factor(200.0, 120.0)
     0.54
+    >>> shadow_factor(200.0, 120.0, nominal_fire=False)
+    0.6
 
     References
     ----------
-    1. EN 1993-1-2:2005, §4.2.5.1(2), eq. (4.26a).
+    1. EN 1993-1-2:2005, §4.2.5.1(2), eqs. (4.26a) and (4.26b).
     """
     am_v = float(section_factor_value)
     box = float(box_section_factor_value)
@@ -363,7 +371,7 @@ def shadow_factor(section_factor_value: float, box_section_factor_value: float) 
         raise PhysicsRangeError("box_section_factor_value", box,
                                 f"0 < [Am/V]_b <= Am/V = {am_v!r} 1/m (the box of an I-section "
                                 "is never longer than its contour)")
-    return SHADOW_FACTOR_COEFFICIENT * box / am_v
+    return (SHADOW_FACTOR_COEFFICIENT if nominal_fire else 1.0) * box / am_v
 
 
 class ISectionFactors(NamedTuple):
@@ -379,7 +387,7 @@ class ISectionFactors(NamedTuple):
 
 def i_section_factors(height: float, width: float, web_thickness: float, flange_thickness: float,
                       root_radius: float, exposure: str = "four_sided",
-                      encasement: str | None = None) -> ISectionFactors:
+                      encasement: str | None = None, nominal_fire: bool = True) -> ISectionFactors:
     r"""Return the area, exposed perimeters, section factors and shadow factor of an I-section.
 
     .. math::
@@ -394,6 +402,8 @@ def i_section_factors(height: float, width: float, web_thickness: float, flange_
         ``"four_sided"`` or ``"three_sided"``.
     encasement : str or None
         None (unprotected), ``"contour"`` or ``"box"``.
+    nominal_fire : bool
+        True under a nominal fire curve (eq. (4.26a)), False otherwise (eq. (4.26b)).
 
     Returns
     -------
@@ -416,7 +426,7 @@ def i_section_factors(height: float, width: float, web_thickness: float, flange_
 
     References
     ----------
-    1. EN 1993-1-2:2005, §4.2.5.1, Table 4.2 and eq. (4.26a); §4.2.5.2.
+    1. EN 1993-1-2:2005, §4.2.5.1, Table 4.2 and eqs. (4.26a), (4.26b); §4.2.5.2.
     """
     h, b, tw, tf, r = _i_section(height, width, web_thickness, flange_thickness, root_radius)
     _exposure(exposure)
@@ -425,7 +435,8 @@ def i_section_factors(height: float, width: float, web_thickness: float, flange_
     box = box_perimeter(h, b, exposure)
     used = section_factor(h, b, tw, tf, r, exposure, encasement)
     box_factor = box / area
-    k_sh = shadow_factor(perimeter / area, box_factor) if encasement is None else None
+    k_sh = (shadow_factor(perimeter / area, box_factor, nominal_fire) if encasement is None
+            else None)
     return ISectionFactors(area, perimeter, box, used, box_factor, k_sh)
 
 
@@ -445,6 +456,13 @@ class RolledSection(NamedTuple):
     published_surface: float | None  # m^2/m, the tabulated surface per metre
     source: str  # the family's source documents and tables
     confirmed: bool  # checked against the printed table
+
+    @property
+    def dimension_source(self) -> str:
+        """The part of the family's source that gives the dimensions (the rest names the
+        tables of areas and surfaces, which the formulas here work out from the dimensions)."""
+        parts = [p.strip() for p in self.source.split(";") if "dimension" in p]
+        return "; ".join(parts) or self.source
 
 
 def _key(designation: str) -> str:
@@ -536,9 +554,61 @@ def rolled_section(profile: str, path: str | Path = CATALOGUE_PATH) -> RolledSec
     by_key = {_key(name): section for name, section in catalogue.items()}
     found = by_key.get(_key(profile))
     if found is None:
-        close = difflib.get_close_matches(str(profile), list(catalogue), n=3, cutoff=0.6)
+        close = closest_sections(profile, path=path)
         hint = f"; closest: {', '.join(close)}" if close else ""
         raise PhysicsRangeError("profile", profile,
                                 "a designation in the catalogue of rolled sections (IPE 80-600, "
                                 f"HEA/HEB 100-600, UB, UC){hint}")
     return found
+
+
+def closest_sections(profile: str, n: int = 3, path: str | Path = CATALOGUE_PATH) -> list[str]:
+    """Return the designations in the catalogue closest to a designation, closest first.
+
+    Parameters
+    ----------
+    profile : str
+        A designation, perhaps mistyped (``"IPE 310"``, ``"UB 356x171x50"``).
+    n : int
+        Most designations returned.
+    path : str or Path
+        The catalogue file (default: the built-in one).
+
+    Returns
+    -------
+    list of str
+        Up to ``n`` designations as written in the catalogue; empty when none is close.
+
+    Notes
+    -----
+    Designations are compared as :func:`rolled_section` finds them (case, spacing and "×"
+    ignored), by the similarity ratio of :class:`difflib.SequenceMatcher` (at least 0.6); among
+    equally similar designations the one whose sizes are nearest comes first.
+
+    Examples
+    --------
+    >>> closest_sections("IPE 310")[0]
+    'IPE 300'
+
+    References
+    ----------
+    1. Python standard library, difflib.SequenceMatcher.
+    """
+    wanted = _key(profile)
+    numbers = [float(x) for x in re.findall(r"\d+(?:\.\d+)?", wanted)]
+
+    def distance(key: str) -> float:
+        # Among equally similar names, the nearest size first: IPE 310 is nearer IPE 300 than
+        # IPE 360, though each differs from it by one character.
+        theirs = [float(x) for x in re.findall(r"\d+(?:\.\d+)?", key)]
+        if len(theirs) != len(numbers):
+            return math.inf
+        return sum(abs(a - b) for a, b in zip(theirs, numbers))
+
+    ranked = []
+    for name in load_section_catalogue(path):
+        key = _key(name)
+        ratio = difflib.SequenceMatcher(None, wanted, key).ratio()
+        if ratio >= 0.6:
+            ranked.append((-round(ratio, 9), distance(key), name))
+    return [name for _, _, name in sorted(ranked)[:n]]
