@@ -281,16 +281,12 @@ def _input_path(exc: PhysicsRangeError, kind) -> str:
 
 
 def _locate(path: str, records, spec) -> Location:
-    """Return where the input at ``path`` was written: the input itself, or the first field
-    written of the list item (or list) it names; the block, when it took its default."""
+    """Return where the input at ``path`` was written (the block, when it took its default)."""
     for r in records:
         if r.loc is not None and r.path == path:
             return r.loc
     for r in records:
         if r.loc is not None and r.path.endswith("." + path):
-            return r.loc
-    for r in records:  # an item of a list, or the list: where its first field is written
-        if r.loc is not None and r.path.startswith((path + ".", path + "[")):
             return r.loc
     return spec.loc
 

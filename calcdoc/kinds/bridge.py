@@ -24,6 +24,7 @@ from calcdoc.kinds.base import (ABSOLUTE, DIFFERENCE, REQUIRED, Choice, Field, I
                                 phrase)
 from calcdoc.kinds.conduction import (CONDENSATION_RSI_SOURCE, TEMPERATURE_FACTOR_SOURCE,
                                       ConductingMaterial)
+from calcdoc.errors import InputError
 from calcdoc.located import plain
 from calcdoc.physics import PhysicsRangeError
 from calcdoc.physics.bridge2d import Region, Surface, psi, thermal_bridge
@@ -74,7 +75,9 @@ class LengthPair(Field):
         return "[x, y] (two lengths)" if self.point else "[start, end] (two lengths)"
 
     def json_schema(self) -> dict:
-        length = Quantity("length", unit="m").json_schema()["anyOf"][0]
+        length = {"anyOf": [{"type": "string", "description": "a length, e.g. '365 mm'"},
+                            {"type": "number", "description": "a number taking the other "
+                             "length's unit"}]}
         return {"description": f"{self.meaning} ({self.type_text()})", "type": "array",
                 "minItems": 2, "maxItems": 2, "items": length}
 
@@ -170,21 +173,28 @@ def _conductivity(out, region: dict, k: int) -> Value:
 _ITEM_ERROR = re.compile(r"^(regions|surfaces)\[(\d+)\](?:\.(x|y|from|to))?$")
 
 
-def _as_written(exc: PhysicsRangeError, out) -> PhysicsRangeError:
+def _as_written(exc: PhysicsRangeError, out) -> Exception:
     """The solver's refusal with the coordinates as the engineer wrote them (it states them in
-    metres), so that the message quotes the sheet."""
+    metres), so that the message quotes the sheet; a refusal of a whole item (a surface off the
+    body's boundary, a detached region) is located where that item's first field is written,
+    there being no input of the item's own path to locate it at."""
     match = _ITEM_ERROR.match(exc.quantity)
     if not match:
         return exc
     written = {r.path: r.written for r in out.records}
     item = f"{match[1]}[{match[2]}]"
-    if match[1] == "surfaces" and match[3] is None:
-        value = f"from {written.get(item + '.from')} to {written.get(item + '.to')}"
-    elif match[3] is not None and f"{item}.{match[3]}" in written:
-        value = written[f"{item}.{match[3]}"]
-    else:
+    if match[3] is not None:
+        if f"{item}.{match[3]}" not in written:
+            return exc
+        return PhysicsRangeError(exc.quantity, written[f"{item}.{match[3]}"], exc.expected,
+                                 exc.index)
+    value = (f"from {written.get(item + '.from')} to {written.get(item + '.to')}"
+             if match[1] == "surfaces" else str(exc.value))
+    loc = next((r.loc for r in out.records if r.path.startswith(item + ".") and r.loc), None)
+    if loc is None:
         return exc
-    return PhysicsRangeError(exc.quantity, value, exc.expected, exc.index)
+    return InputError(loc, f"{out.block_key}.inputs.{item}", "outside the range of the method",
+                      exc.expected, value)
 
 
 def _compute(inp, out):
