@@ -320,3 +320,22 @@ def test_demo_sheet_tb1__evaluates_checks_pass_and_its_steps_redo(tmp_path):
     corner = blocks[1].output.results
     assert 0.0 < corner["psi"].value < 0.05
     assert math.isclose(corner["x_si_min"].value, 0.0, abs_tol=1e-9)  # the inside corner
+
+
+def test_mesh_check_not_met__warned_with_its_numbers(evaluate):
+    # Two surfaces held at fixed temperatures (R = 0) meeting at a corner: the heat flow there
+    # is unbounded in the continuum, so halving a coarse mesh changes L2D by more than 1 %
+    # (calcdoc/physics/bridge2d.py, solve_section notes).
+    block = evaluate(sheet("""\
+        regions:
+          - {name: Square, x: [0, 1 m], y: [0, 1 m], conductivity: 1 W/(m*K)}
+        surfaces:
+          - {name: Top, side: inside, from: [0, 1 m], to: [1, 1 m], surface_resistance: 0 m^2*K/W}
+          - {name: Side, side: outside, from: [1, 1 m], to: [1, 0 m], surface_resistance: 0 m^2*K/W}
+        inside_temperature: 20 degC
+        outside_temperature: 0 degC
+        cell_size: 250 mm
+        """)).block("B.tb")
+    (warning,) = [fill(w["text"], 3) for w in block.output.warnings]
+    assert warning.startswith("The mesh check is not met: L2D changes by ")
+    assert ", more than 1 % on halving the cells." in warning

@@ -491,14 +491,13 @@ THERMAL_BRIDGE = Kind(
                  default=None, unit="m", greater_than=0.0, display="mm"),
     ),
     results=(
-        ResultSpec("L2D", "W/(m*K)", "thermal coupling coefficient: heat flow from inside to "
-                   "outside per kelvin and metre of junction"),
+        ResultSpec("L2D", "W/(m*K)", "heat flow inside to outside per kelvin and metre"),
         ResultSpec("psi", "W/(m*K)", "linear thermal transmittance, L2D − Σ U·l"),
-        ResultSpec("theta_si_min", "K", "lowest inside surface temperature (with "
-                   "condensation_surface_resistance)", temperature=ABSOLUTE),
-        ResultSpec("f_Rsi", "1", "temperature factor at the coldest inside surface point"),
-        ResultSpec("x_si_min", "m", "x of the coldest inside surface point"),
-        ResultSpec("y_si_min", "m", "y of the coldest inside surface point"),
+        ResultSpec("theta_si_min", "K", "lowest inside surface temperature (R_si,sc)",
+                   temperature=ABSOLUTE),
+        ResultSpec("f_Rsi", "1", "temperature factor at the coldest inside point"),
+        ResultSpec("x_si_min", "m", "x of the coldest inside point"),
+        ResultSpec("y_si_min", "m", "y of the coldest inside point"),
     ),
     compute=_compute,
     caution=CAUTION,
