@@ -14,13 +14,20 @@ R_si = 0.25 included), the meshes solved, the cell count, the peak memory, the r
 reference on a mesh eight times finer, and the time of single solves on finer uniform meshes to
 show how the solver scales. Target: under 1 s on a 2-core machine. No test asserts a time.
 
+Then the demo sheet TB1 through the ``thermal_bridge`` kind: the evaluation of a copy of the
+demo project listing EW1, FW1 and TB1, less the same without TB1 (the sheet's own evaluation:
+input conversion, the solver, the steps and the figure data), the solver's share of it, and the
+time to draw TB1's two section figures. Target: the kind adds little to the solver.
+
 Run: ``.venv/bin/python bench/bench_bridge.py``
 """
 
 from __future__ import annotations
 
 import resource
+import shutil
 import sys
+import tempfile
 import time
 import tracemalloc
 from pathlib import Path
@@ -106,5 +113,70 @@ def main() -> None:
               f"L2D = {solution.L2D:.4f}")
 
 
+def demo_sheet() -> None:
+    """Time the demo sheet TB1 through the kind (see the module docstring)."""
+    import calcdoc.kinds.bridge as kind
+    from calcdoc.evaluate import evaluate_folder
+    from calcdoc.render.plots import draw
+
+    demo = Path(__file__).resolve().parents[1] / "projects" / "cold-store"
+    solver_seconds = []
+    solver = kind.thermal_bridge
+
+    def timed(*args, **kwargs):
+        start = time.perf_counter()
+        try:
+            return solver(*args, **kwargs)
+        finally:
+            solver_seconds.append(time.perf_counter() - start)
+
+    with tempfile.TemporaryDirectory() as folder:
+        projects = {}
+        for name, sheets in (("without", ["ew1", "fw1"]), ("with", ["ew1", "fw1", "tb1"])):
+            project = Path(folder) / name
+            shutil.copytree(demo, project)
+            (project / "review.yaml").unlink(missing_ok=True)
+            text = (project / "project.yaml").read_text()
+            start, end = text.index("  sheets:\n"), text.index("revisions:")
+            (project / "project.yaml").write_text(
+                text[:start] + "  sheets:\n" + "".join(f"    - sheets/{s}.yaml\n" for s in sheets)
+                + text[end:])
+            projects[name] = project
+        warm = evaluate_folder(projects["with"])  # warm-up: imports, library, caches
+        blocks_of = [b for s in warm.sheets if s.id == "TB1" for b in s.blocks]
+        times = {"with": [], "without": []}
+        kind.thermal_bridge = timed
+        try:
+            for _ in range(REPEATS):
+                for name in ("without", "with"):
+                    start = time.perf_counter()
+                    package = evaluate_folder(projects[name])
+                    times[name].append(time.perf_counter() - start)
+        finally:
+            kind.thermal_bridge = solver
+    median = {name: sorted(t)[len(t) // 2] for name, t in times.items()}
+    sheet = median["with"] - median["without"]
+    per_run = sorted(sum(solver_seconds[i:i + len(blocks_of)]) for i in range(
+        0, len(solver_seconds), len(blocks_of)))  # the solves of one evaluation of TB1
+    solve = per_run[len(per_run) // 2]
+    blocks = blocks_of
+    start = time.perf_counter()
+    for block in blocks:
+        for figure in block.output.figures:
+            draw(figure)
+    drawing = time.perf_counter() - start
+    print("Demo sheet TB1 (two junctions) through the thermal_bridge kind")
+    print(f"  evaluation of EW1 + FW1 + TB1: {1000 * median['with']:.0f} ms, of EW1 + FW1: "
+          f"{1000 * median['without']:.0f} ms (medians of {REPEATS}): TB1 takes "
+          f"{1000 * sheet:.0f} ms, of which the solver {1000 * solve:.0f} ms for its two blocks")
+    for block in blocks:
+        check = block.output.results
+        print(f"    {block.key}: L2D = {check['L2D'].value:.4f} W/(m·K), psi = "
+              f"{check['psi'].value:.4f} W/(m·K), f_Rsi = {check['f_Rsi'].value:.3f}")
+    print(f"  drawing its two section figures (the site and the PDF share them): "
+          f"{1000 * drawing:.0f} ms")
+
+
 if __name__ == "__main__":
     main()
+    demo_sheet()

@@ -71,7 +71,8 @@ class Step:
     ``expr`` is in the formula language (numbers, operand names, ``+ - * / **``, parentheses,
     sqrt, exp, log, log10, sin, cos, tan, abs, min, max, pi, sigma) over ``operands``. A step
     that is not a closed-form evaluation (an iteration, a solver's output, a table look-up) has
-    no ``expr`` and says what was done in ``statement``. ``yields`` names the block result the
+    no ``expr`` and says what was done in ``statement``; its ``operands``, if any, are values
+    it took as they stand (a library value), kept for the list of values to confirm. ``yields`` names the block result the
     step gives; ``symbols`` overrides the typeset symbol of a name (LaTeX); ``group`` and
     ``item`` mark a formula applied to each item of a list (a resistance per layer), which the
     report may print as one table."""
@@ -117,7 +118,9 @@ class Line:
 @dataclass(frozen=True)
 class Band:
     """A vertical band from x0 to x1 (a layer of a wall), shaded by ``shade`` (0 white, 1 grey
-    hatched, 2 grey, 3 hatched the other way) and named inside."""
+    hatched, 2 grey, 3 hatched the other way, 4 peach, 5 blue cross-hatched, 6 pale yellow,
+    7 vertical lines, 8 dark grey hatched, 9 pale green with horizontal lines, 10 pale pink
+    crossed, 11 dark grey) and named inside."""
 
     x0: float
     x1: float
@@ -129,7 +132,9 @@ class Band:
 class Box:
     """A rectangle (an opening, a region of a section), shaded and named; the name is drawn
     at its centre, or at ``label_at`` (x, y in the axes' SI units) where something else sits
-    at the centre."""
+    at the centre. ``legend`` is what the shade means (a material), given in the legend beside
+    a swatch of the shade, once for all boxes with the same words: the key of a section whose
+    thin regions cannot hold their names."""
 
     x0: float
     y0: float
@@ -138,6 +143,7 @@ class Box:
     label: str = ""
     shade: int = 0
     label_at: tuple | None = None
+    legend: Phrase | str = ""
 
 
 @dataclass(frozen=True)
@@ -180,7 +186,10 @@ class FigureData:
     ``appendix`` sends it to the materials appendix (a material's temperature law) instead of
     the block; ``equal_aspect`` draws both axes to one scale (a plan, a section); ``size`` is
     the width and height in mm. The words of a line, band, mark or point may be a
-    :class:`Phrase` (``t = {t}``): the view fills its numbers as it prints any other."""
+    :class:`Phrase` (``t = {t}``): the view fills its numbers as it prints any other.
+    ``legend`` is a place for the legend (``"best"``, ``"upper left"``, ...), None for none, or
+    ``"outside"``: beside the plot on the right, where a section drawn to scale leaves room;
+    the words of the points then go into the legend too, instead of over the drawing."""
 
     key: str
     caption: Phrase | str

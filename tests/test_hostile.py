@@ -456,6 +456,7 @@ def test_limits_page_quotes_the_enforced_limits():
     # docs/limits.md states the limits; they must be the ones the code enforces.
     from calcdoc import archive, located, physics, seal, sources
     from calcdoc.kinds import condensation, formula
+    from calcdoc.physics import bridge2d
     text = (Path(__file__).resolve().parent.parent / "docs" / "limits.md").read_text()
     for phrase in (f"| {sources.MAX_FILE_BYTES // (1024 * 1024)} MiB |",
                    f"| {located.MAX_DEPTH} levels |", f"| {located.MAX_VALUES:,} |".replace(",", " "),
@@ -466,6 +467,7 @@ def test_limits_page_quotes_the_enforced_limits():
                    f"| {physics.MAX_CELLS:,} |".replace(",", " "),
                    f"| {int(physics.MAX_DURATION // 3600)} h |",
                    f"are sliced) | {condensation.MAX_SLICES} |",
+                   f"| {bridge2d.DEFAULT_MAX_CELLS:,} |".replace(",", " "),
                    f"| {archive.MAX_ARCHIVE_BYTES // (1024 * 1024)} MiB |",
                    f"| {archive.MAX_JSON_BYTES // (1024 * 1024)} MiB |",
                    f"| {archive.MAX_ATTACHMENTS:,} |".replace(",", " "),

@@ -880,9 +880,14 @@ class BlockOutput:
                   values: dict | None = None, display: str | None = None,
                   temperature: str | None = None, label="", source: str = "",
                   yields: str | None = None, symbols: dict | None = None,
-                  group: str | None = None, item: str | None = None) -> Value:
+                  group: str | None = None, item: str | None = None,
+                  uses: dict | None = None) -> Value:
         """Record a step that is not a closed-form evaluation (an iteration, a solver's output,
-        a table look-up): what was done, in words with named values, and its result."""
+        a table look-up): what was done, in words with named values, and its result.
+
+        ``uses`` names values the solver took as they stand without the words printing them
+        (a library conductivity of each region of a section): kept as the step's operands, so
+        that the package lists those still to confirm; nothing evaluates them."""
         if yields is not None:
             spec = self._declared.get(yields)
             self.result(yields, value, unit=None if spec else unit, temperature=temperature,
@@ -893,8 +898,9 @@ class BlockOutput:
         whole = yields is not None and self._declared[yields].whole
         result = Value(value if isinstance(value, (list, tuple)) else float(value), unit,
                        display, temperature, given=whole)
-        self.steps.append(Step(name, result, None, {}, phrase(text, **(values or {})), label,
-                               source, yields, dict(symbols or {}), group, item))
+        self.steps.append(Step(name, result, None, dict(uses or {}),
+                               phrase(text, **(values or {})), label, source, yields,
+                               dict(symbols or {}), group, item))
         return result
 
     # ---- words and figures

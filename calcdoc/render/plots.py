@@ -38,6 +38,10 @@ FIGURE_HEIGHT_MM = 56.0
 HALF_WIDTH_MM, HALF_HEIGHT_MM = 86.0, 52.0
 """A graph drawn to stand beside another: half the PDF's text width [mm]."""
 
+FIELD_HEIGHT_MM = 100.0
+"""Tallest figure of a field drawn to scale (a section with its isotherms) [mm]: it is read
+closely, at the PDF's full text width."""
+
 PLOT_POINTS = 400
 """Most points drawn for one line; a figure about 160 mm wide shows no more."""
 
@@ -71,10 +75,12 @@ def figure(key: str, width_mm: float = 160, height_mm: float = 80):
         yield fig, ax
 
 
-def svg_of(fig) -> str:
-    """Return the figure as SVG text with no date in its metadata."""
+def svg_of(fig, layout: bool = True) -> str:
+    """Return the figure as SVG text with no date in its metadata; ``layout`` False keeps a
+    layout the caller has already fixed."""
     buffer = io.StringIO()
-    fig.tight_layout()
+    if layout:
+        fig.tight_layout()
     # tight_layout leaves a placeholder layout engine behind, and savefig then draws the whole
     # figure once more, invisibly, before drawing it for real; the layout is already fixed
     fig.set_layout_engine(None)
@@ -128,7 +134,11 @@ def mark_horizontal(ax, y: float, label: str, style: str = "--"):
 
 _SHADES = ({"facecolor": "#ffffff", "hatch": None}, {"facecolor": "#ebebeb", "hatch": "//"},
            {"facecolor": "#d9d9d9", "hatch": None}, {"facecolor": "#f2f2f2", "hatch": "\\\\"},
-           {"facecolor": "#f6e0d3", "hatch": None}, {"facecolor": "#e3ecf7", "hatch": "xx"})
+           {"facecolor": "#f6e0d3", "hatch": None}, {"facecolor": "#e3ecf7", "hatch": "xx"},
+           # further shades for the many materials of a section, still distinct in grey
+           {"facecolor": "#fff3c4", "hatch": None}, {"facecolor": "#ffffff", "hatch": "||"},
+           {"facecolor": "#c8c8c8", "hatch": "\\\\"}, {"facecolor": "#e6f0dc", "hatch": "--"},
+           {"facecolor": "#f4e4f0", "hatch": "++"}, {"facecolor": "#b8b8b8", "hatch": None})
 
 
 @dataclass(frozen=True)
@@ -158,6 +168,37 @@ def _axis_text(axis) -> str:
     return f"{axis.label} ({shown})" if shown else axis.label
 
 
+def _legend_beside(fig, ax, handles, to_scale: bool) -> None:
+    """Lay out a plot with its legend beside it on the right, the two centred together: the
+    plot takes the room its tick labels, axis words and the legend leave; a plot drawn to scale
+    keeps its aspect and the figure loses the height it does not fill. By hand, because
+    tight_layout neither makes room for a legend outside the axes nor measures the margins of a
+    plot drawn to scale."""
+    legend = fig.legend(handles=handles, loc="center left", borderaxespad=0.0)
+    legend.set_in_layout(False)
+    width, height = fig.get_size_inches()
+    inches = fig.dpi_scale_trans.inverted()
+    key = legend.get_window_extent().transformed(inches).width
+    pad = 4.0 / 72.0  # 4 pt
+    tight = ax.get_tightbbox().transformed(inches)  # applies the aspect first
+    box = ax.get_window_extent().transformed(inches)  # the plot as drawn, aspect applied
+    left, right = box.x0 - tight.x0 + pad, tight.x1 - box.x1
+    bottom, top = box.y0 - tight.y0 + pad, tight.y1 - box.y1 + pad
+    plot_w = width - left - right - 2 * pad - key
+    plot_h = height - bottom - top
+    if to_scale:
+        (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
+        ratio = abs(y1 - y0) / abs(x1 - x0)
+        plot_w = min(plot_w, plot_h / ratio)
+        plot_h = plot_w * ratio
+        height = min(height, plot_h + bottom + top)
+        fig.set_size_inches(width, height)
+    shift = max(0.0, (width - (left + plot_w + right + pad + key + pad)) / 2.0)
+    ax.set_position(((shift + left) / width, bottom / height, plot_w / width, plot_h / height))
+    legend.set_bbox_to_anchor(((shift + left + plot_w + right + pad) / width,
+                               (bottom + plot_h / 2) / height), fig.transFigure)
+
+
 def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
     """Return a figure drawn from its data: bands and boxes first, then contours, curves, marks
     and points with their words, axes in the display units the data asks for."""
@@ -183,12 +224,15 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
     half = data.contours is None and len(data.bands) <= 3 and (
         not data.equal_aspect or width >= 1.5 * height)
     if data.equal_aspect:
-        scale = min(1.0, FIGURE_HEIGHT_MM / height, (HALF_WIDTH_MM / width) if half else 1.0)
+        tallest = FIELD_HEIGHT_MM if data.contours is not None else FIGURE_HEIGHT_MM
+        scale = min(1.0, tallest / height, (HALF_WIDTH_MM / width) if half else 1.0)
         width, height = width * scale, height * scale
     elif half:
         width, height = HALF_WIDTH_MM, min(height, HALF_HEIGHT_MM)
     else:
         height = min(height, FIGURE_HEIGHT_MM)
+    outside = data.legend == "outside"
+    handles = []  # the legend's entries: the boxes' key, then the curves, then points
     with figure(data.key, width, height) as (fig, ax):
         for band in data.bands:
             shade = _SHADES[band.shade % len(_SHADES)]
@@ -211,22 +255,27 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
                 ax.text(lx, ly, box.label, ha="center", va="center",
                         fontsize=7, zorder=3,
                         bbox={"facecolor": "white", "edgecolor": "none", "pad": 0.8})
+            key = words(box.legend)
+            if key and key not in [h.get_label() for h in handles]:
+                handles.append(Rectangle((0, 0), 1, 1, edgecolor="#000000", linewidth=0.7,
+                                         label=key, **shade))
         if data.contours is not None:
             c = data.contours
             az, bz = _scale(c.unit, c.display)
             values = az + bz * np.asarray(c.values, dtype=float)
             levels = None if c.levels is None else az + bz * np.asarray(c.levels, dtype=float)
+            # solid below zero too: a dashed isotherm would read as a different kind of line
             lines = ax.contour(sx(c.x), sy(c.y), values, levels=levels, colors="#333333",
-                               linewidths=0.6, zorder=2)
+                               linewidths=0.6, linestyles="solid", zorder=2)
             ax.clabel(lines, fmt=lambda v: f"{v:g}", fontsize=6)
-        labelled = False
         for line in data.lines:
             x, y = thin(sx(line.x), sy(line.y))
-            ax.plot(x, y, color=COLOURS[line.style % len(COLOURS)],
-                    linestyle=LINE_STYLES[line.style % len(LINE_STYLES)],
-                    marker="o" if line.marker else None, markersize=3, zorder=4,
-                    label=words(line.label) or None)
-            labelled = labelled or bool(line.label)
+            drawn, = ax.plot(x, y, color=COLOURS[line.style % len(COLOURS)],
+                             linestyle=LINE_STYLES[line.style % len(LINE_STYLES)],
+                             marker="o" if line.marker else None, markersize=3, zorder=4,
+                             label=words(line.label) or None)
+            if line.label:
+                handles.append(drawn)
         for mark in data.marks:
             style = LINE_STYLES[mark.style % len(LINE_STYLES)]
             if mark.axis == "y":
@@ -235,9 +284,12 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
                 mark_vertical(ax, float(sx(mark.at)), words(mark.label), style)
         for point in data.points:
             px, py = float(sx(point.x)), float(sy(point.y))
-            ax.plot([px], [py], marker="X", markersize=8, color=COLOURS[1], linestyle="none",
-                    zorder=5)
-            if point.label:
+            drawn, = ax.plot([px], [py], marker="X", markersize=8, color=COLOURS[1],
+                             linestyle="none", zorder=5)
+            if point.label and outside:  # named in the legend beside, not over the drawing
+                drawn.set_label(words(point.label))
+                handles.append(drawn)
+            elif point.label:
                 # The words sit in the free corner away from the data, with a leader line, so
                 # that they cover nothing they name.
                 ax.annotate(words(point.label), xy=(px, py), xytext=(0.98, 0.98),
@@ -254,7 +306,9 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
             ax.set_aspect("equal")
         ax.set_xlabel(_axis_text(data.x))
         ax.set_ylabel(_axis_text(data.y))
-        if labelled and data.legend:
-            ax.legend(loc=data.legend)
-        svg = svg_of(fig)
+        if handles and outside:
+            _legend_beside(fig, ax, handles, data.equal_aspect)
+        elif handles and data.legend:
+            ax.legend(handles=handles, loc=data.legend)
+        svg = svg_of(fig, layout=not (handles and outside))
     return Drawn(data.key, fill(data.caption, sig, system), svg, data.appendix, half)
