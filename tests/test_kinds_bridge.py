@@ -283,7 +283,7 @@ def test_region_extent_not_two_lengths__located_exit_2(tmp_path, capsys):
 
 
 def test_inside_not_warmer__refused_at_the_inside_temperature(tmp_path, capsys):
-    # θ_si,min and f_Rsi belong to the warm side (FORMAT.md: write an element from its warm side)
+    # θ_si,min and f_Rsi belong to the warm side (docs/format.md: write an element from its warm side)
     status, err = build_errors(tmp_path, capsys, sheet(PLAIN_WALL.replace(
         "inside_temperature: 20 degC", "inside_temperature: -5 degC")))
     assert status == 2
@@ -297,8 +297,7 @@ def test_inside_not_warmer__refused_at_the_inside_temperature(tmp_path, capsys):
 
 
 def test_demo_sheet_tb1__evaluates_checks_pass_and_its_steps_redo(tmp_path):
-    # TB1 is not yet listed in the demo's project.yaml: a copy lists it after EW1 and FW1, whose
-    # U-values it takes.
+    # A copy of the demo with only TB1 and the sheets whose U-values it takes (EW1, FW1).
     project = tmp_path / "demo"
     shutil.copytree(DEMO, project)
     (project / "review.yaml").unlink(missing_ok=True)

@@ -2,7 +2,7 @@
 sheets written inline.
 
 Check values are the hand calculations of tests/test_physics_glaser.py (worked in its comments
-from the method as FORMAT.md states it: conduction in series, the Annex E saturation pressure,
+from the method as docs/format.md states it: conduction in series, the Annex E saturation pressure,
 the tautest line, g = δ0·[(p_l − p_c)/s_l − (p_c − p_r)/s_r], δ0 = 2.0e-10 kg/(m·s·Pa)), the
 same invented walls and climates written as sheets, and hand calculations of the same kind in
 the comments here. Bad inputs are asserted word for word (FILE:LINE:COL, exit 2, nothing
@@ -126,7 +126,7 @@ def test_wall_a_year__hand_calculation_starts_in_december_and_dries_out(wall_a):
     assert r["end_of_year_accumulated"] == 0.0
     assert r["dries_out"] == 1
     shown = raw(wall_a)
-    assert shown["m_0"].result.si == 12  # FORMAT.md start-month rule: December after November
+    assert shown["m_0"].result.si == 12  # docs/format.md start-month rule: December after November
     assert [shown[f"M_{j}"].result.si for j in range(1, 7)] == pytest.approx(
         [2.6953, 5.3906, 7.8250, 4.7058, 1.6871, 0.0], abs=5e-4)  # hand calculation
     assert [shown[f"M_{j}"].item for j in (1, 2, 12)] == ["December", "January", "November"]
@@ -144,7 +144,7 @@ def test_wall_a__worst_month_rate_written_out_with_delta_0_as_a_given_operand(wa
     g = steps["g_c"]
     assert g.expr == "delta_0 * ((p_i - p_c) / s_i - (p_c - p_e) / s_e)"
     assert g.result.si == pytest.approx(1.0063e-6, rel=5e-5)  # hand calculation
-    assert g.operands["delta_0"].si == 2.0e-10  # FORMAT.md: δ0 = 2.0 × 10⁻¹⁰ kg/(m·s·Pa)
+    assert g.operands["delta_0"].si == 2.0e-10  # docs/format.md: δ0 = 2.0 × 10⁻¹⁰ kg/(m·s·Pa)
     assert g.operands["delta_0"].given
     assert steps["theta_1"].result.si - C == pytest.approx(1.0108, abs=5e-5)  # hand
     assert steps["p_sat_1"].result.si == pytest.approx(656.90, abs=0.005)  # hand, Annex E
@@ -168,7 +168,7 @@ def test_wall_b_year__does_not_dry_out_and_says_so(evaluate):
     assert r["month_of_max"] == 3  # March, hand calculation
     assert r["end_of_year_accumulated"] == pytest.approx(0.8861, abs=5e-5)  # hand calculation
     assert r["dries_out"] == 0
-    assert raw(block)["m_0"].result.si == 11  # FORMAT.md rule: November after October
+    assert raw(block)["m_0"].result.si == 11  # docs/format.md rule: November after October
     assert texts(block.output.warnings) == [
         "The element does not dry out: 0.886 kg/m² remains after the year and accumulates "
         "year on year, which the method does not accept."]
@@ -178,7 +178,7 @@ def test_wall_b_year__does_not_dry_out_and_says_so(evaluate):
 
 def test_condensation_every_month__year_starts_in_january_by_convention(evaluate):
     # Wall A at 0 °C, 80 % all year: 1.0063e-6 kg/(m²·s) · 365 · 86400 s = 31.73 kg/m²
-    # (hand calculation, tests/test_physics_glaser.py); FORMAT.md is silent on the start of such
+    # (hand calculation, tests/test_physics_glaser.py); docs/format.md is silent on the start of such
     # a year: calcdoc's convention is January, and the statement says so.
     block = evaluate(sheet(WALL_A, climate(0))).block("S.ic")
     r = results(block)

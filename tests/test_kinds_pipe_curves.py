@@ -460,15 +460,11 @@ def test_radial_profile_in_a_curve_layer__matches_solve_ivp(evaluate):
 
 
 @pytest.fixture(scope="module")
-def demo_with_sm1(tmp_path_factory) -> Path:
-    """A copy of the demo project with SM1 added after PW1 (the lead adds it to the real one)."""
-    demo = tmp_path_factory.mktemp("demo") / "cold-store"
-    shutil.copytree(ROOT / "projects" / "cold-store", demo)
+def demo_with_sm1() -> Path:
+    """The demo project, which lists SM1 after PW1."""
+    demo = ROOT / "projects" / "cold-store"
     project = yaml.safe_load((demo / "project.yaml").read_text())
-    sheets = project["package"]["sheets"]
-    assert "sheets/sm1.yaml" not in sheets
-    sheets.insert(sheets.index("sheets/pipework.yaml") + 1, "sheets/sm1.yaml")
-    (demo / "project.yaml").write_text(yaml.safe_dump(project, sort_keys=False))
+    assert "sheets/sm1.yaml" in project["package"]["sheets"]
     return demo
 
 

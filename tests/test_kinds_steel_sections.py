@@ -1,4 +1,4 @@
-"""steel_member_heating given by its section (FORMAT.md, "steel_member_heating — additions"): the
+"""steel_member_heating given by its section (docs/format.md, "steel_member_heating — additions"): the
 section factor worked out as steps by EN 1993-1-2:2005 Table 4.2 from a catalogue profile or
 from the dimensions, the shadow factor of eq. (4.26a) / (4.26b), the heating fed with them,
 the catalogue's unconfirmed dimensions listed as values to confirm, located errors word for
@@ -284,12 +284,12 @@ confirmations:
      "got nothing)"),
     (IPE_300 + "\n      encasement: box",
      "proj/sheets/sb1.yaml:12:19: error: SB1.beam.inputs.encasement: input 'encasement' "
-     "applies only to a protected member (expected a 'protection' with it (FORMAT.md, "
+     "applies only to a protected member (expected a 'protection' with it (docs/format.md, "
      "steel_member_heating), got 'box')"),
     (IPE_300.replace('section: {profile: "IPE 300"}', "section_factor: 200 1/m"),
      "proj/sheets/sb1.yaml:10:17: error: SB1.beam.inputs.exposure: input 'exposure' applies only "
      "to a member given by its section (expected 'section' in place of 'section_factor' "
-     "(FORMAT.md, steel_member_heating), got 'four_sided')"),
+     "(docs/format.md, steel_member_heating), got 'four_sided')"),
     (IPE_300_DIMENSIONS.replace("web_thickness: 7.1 mm", "web_thickness: 160 mm"),
      "proj/sheets/sb1.yaml:9:81: error: SB1.beam.inputs.section.web_thickness: outside the range "
      "of the method (expected less than the width b = 0.15 m, got '160 mm')"),

@@ -1,4 +1,4 @@
-"""timber_member_fire (FORMAT.md): EN 1995-1-2:2004 reduced cross-section method for a
+"""timber_member_fire (docs/format.md): EN 1995-1-2:2004 reduced cross-section method for a
 rectangular member in the standard fire, recorded as steps a checker re-does; the tables' values
 as values to confirm; the time to failure from the root solve; located errors word for word;
 figures as data.

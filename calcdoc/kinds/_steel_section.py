@@ -1,4 +1,4 @@
-"""The section of a steel member in fire, for ``steel_member_heating`` (FORMAT.md, additions).
+"""The section of a steel member in fire, for ``steel_member_heating`` (docs/format.md, additions).
 
 A member is given by its section instead of a section factor: an I-section by its five
 dimensions (``{shape: i_section, height, width, web_thickness, flange_thickness,

@@ -1,6 +1,6 @@
 """The ``interstitial_condensation`` kind: the monthly method of ISO 13788:2012 (Glaser).
 
-The physics is in :mod:`calcdoc.physics.glaser`; this module declares the inputs of FORMAT.md,
+The physics is in :mod:`calcdoc.physics.glaser`; this module declares the inputs of docs/format.md,
 divides thick layers into slices (the physics tests saturation at planes only), and records as
 data the working a checker re-does: each layer's thermal resistance and equivalent air
 thickness, the worst month in full (the temperature and saturation pressure at every plane, the

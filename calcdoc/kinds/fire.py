@@ -906,13 +906,13 @@ def _stepped_results(inp, out, run, theta_cr: float, duration: float, clause: st
 
 def _member_factors(inp, out, fire: FireCurve, protected: bool) -> SectionFactors:
     """Return the section factor and the shadow factor the heating uses: as given, or worked
-    out from the member's section (FORMAT.md, steel_member_heating — additions)."""
+    out from the member's section (docs/format.md, steel_member_heating — additions)."""
     if inp.section is None:
         for name in ("exposure", "encasement"):
             if inp[name] is not None:
                 raise _input_error(out, name, f"input '{name}' applies only to a member given "
                                    "by its section", "'section' in place of 'section_factor' "
-                                   "(FORMAT.md, steel_member_heating)", "")
+                                   "(docs/format.md, steel_member_heating)", "")
         section_factor = out.input("section_factor")
         if protected:
             return SectionFactors(section_factor, None)
@@ -929,7 +929,7 @@ def _member_factors(inp, out, fire: FireCurve, protected: bool) -> SectionFactor
                            "section (EN 1993-1-2:2005 Table 4.2)")
     if not protected and inp.encasement is not None:
         raise _input_error(out, "encasement", "input 'encasement' applies only to a protected "
-                           "member", "a 'protection' with it (FORMAT.md, steel_member_heating)",
+                           "member", "a 'protection' with it (docs/format.md, steel_member_heating)",
                            "")
     return section_steps(out, inp.section, inp.exposure, inp.encasement, inp.shadow_factor,
                          nominal_fire=fire.name in NAMED_FIRES)

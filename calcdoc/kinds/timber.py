@@ -1,4 +1,4 @@
-"""Timber in fire: ``timber_member_fire`` (FORMAT.md), EN 1995-1-2:2004 reduced cross-section.
+"""Timber in fire: ``timber_member_fire`` (docs/format.md), EN 1995-1-2:2004 reduced cross-section.
 
 A rectangular member chars from its exposed faces under the standard fire at the notional
 charring rate βn; a zero-strength layer k0·d0 below the char line is discounted too, and the
