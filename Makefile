@@ -18,9 +18,9 @@ demo: system $(VENV)/.installed
 test: system $(VENV)/.installed
 	$(PY) -m pytest
 
-# The fuzz tests of the suite with many more examples, random each run (about 10 minutes).
+# The fuzz tests of the suite with many more examples, random each run (about 5 minutes).
 fuzz: system $(VENV)/.installed
-	CALCDOC_FUZZ_SCALE=$${CALCDOC_FUZZ_SCALE:-20} $(PY) -m pytest -q -p no:randomly tests/test_fuzz.py
+	CALCDOC_FUZZ_SCALE=$${CALCDOC_FUZZ_SCALE:-10} $(PY) -m pytest -q -p no:randomly tests/test_fuzz.py
 
 # docs/format.md from the program's declarations (a test checks it is current)
 docs: $(VENV)/.installed
