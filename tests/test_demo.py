@@ -95,6 +95,10 @@ def test_materials_appendix_lists_each_material_with_its_source(demo):
     # brick_clay: 0.77 W/(m·K), the library's value (CIBSE Guide A Table 3.52, from memory)
     assert '<code class="meaning">brick_clay</code>' in section and "0.77 W/(m·K)" in section
     assert "temperature-dependent law (en1992_concrete)" in section
+    # a conductivity curve is printed beside the constant λ it replaces in the pipe kinds: the
+    # stone wool pipe section of SM1 (the library's entry, points as written there)
+    curve_row = section.split('<code class="meaning">mineral_wool_pipe</code>')[1].split("</tr>")[1]
+    assert "λ(θ): 0 °C 0.034; 50 °C 0.039;" in curve_row and "300 °C 0.082 W/(m·K)" in curve_row
     # the EN 1992-1-2 concrete law is plotted once, though two W7 blocks use it
     for prop in ("thermal conductivity λ", "specific heat", "density ρ"):
         assert section.count(f"Material law, {prop}, 20 °C to 1200 °C: EN 1992-1-2") == 1

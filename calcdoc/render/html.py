@@ -591,6 +591,16 @@ _MATERIAL_COLUMNS = (("conductivity", "W/(m*K)"), ("density", "kg/m^3"),
                      ("specific_heat", "J/(kg*K)"), ("emissivity", "1"))
 
 
+def _curve_text(curve) -> str:
+    """Return a conductivity curve as printed in the materials appendix: each point θ λ, the
+    unit once (the pipe kinds average it over each layer; the constant λ is its declared value)."""
+    if not curve:
+        return ""
+    points = [f"{print_value(Value(t, 'K', temperature='absolute', given=True), 3).text} "
+              f"{print_value(Value(k, 'W/(m*K)', given=True), 3).number}" for t, k in curve]
+    return "λ(θ): " + "; ".join(points) + " W/(m·K)"
+
+
 def _materials_view(package, cites: "Citations", links) -> list[dict]:
     """Return every library material the package uses, with its properties, source and users."""
     used: dict[str, list[str]] = {}
@@ -607,6 +617,7 @@ def _materials_view(package, cites: "Citations", links) -> list[dict]:
                       for column, unit in _MATERIAL_COLUMNS if column in entry}
         rows.append({"name": name, "title": entry.get("title", name),
                      "properties": properties, "law": entry.get("law", ""),
+                     "curve": _curve_text(entry.get("conductivity_curve")),
                      "file": entry.get("file", ""),
                      "cite": [cites.cite(entry.get("source", ""), k, project=name in
                                           package.project.project_materials)
