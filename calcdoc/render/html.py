@@ -36,9 +36,13 @@ from calcdoc.render.status import signoff_state
 __all__ = ["package_view", "render_site", "render_package_html", "environment", "TEMPLATES",
            "CAUTION", "PRELIMINARY", "sheet_page_name", "notes_html", "initials", "Citations"]
 
-TEMPLATES = Path(__file__).resolve().parent.parent.parent / "templates"
-if not TEMPLATES.is_dir():  # installed as a wheel: templates are package data
-    TEMPLATES = Path(__file__).resolve().parent.parent / "templates"
+# Installed from a wheel, the templates are package data (calcdoc/templates, mapped from the
+# repository's templates/ by pyproject.toml); in a checkout they are the repository's own. The
+# package's copy is looked for first: beside an installed calcdoc, site-packages/templates may be
+# another distribution's folder.
+TEMPLATES = Path(__file__).resolve().parent.parent / "templates"
+if not (TEMPLATES / "style.css").is_file():
+    TEMPLATES = Path(__file__).resolve().parent.parent.parent / "templates"
 
 CAUTION = ("These calculations support, and do not replace, the judgement of a licensed "
            "engineer and the requirements of the local building code and the authority having "
