@@ -88,6 +88,7 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     out = Path(out_dir) if out_dir else Path("build") / name
     check_output_folder(out)
 
+    current().show(f"load: reading {project_dir}", force=True)
     project, errors = read_project(project_dir)
     timings["load"] = time.perf_counter() - t0
     if project is None:

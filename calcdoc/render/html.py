@@ -23,6 +23,7 @@ import nh3
 from markupsafe import Markup, escape
 
 from calcdoc import __version__
+from calcdoc import progress as _progress
 from calcdoc.data import Value
 from calcdoc.expressions import CONSTANTS, parse_expression, symbol_latex, to_latex
 from calcdoc.render.math import formula_width_pt, mathml, pdf_math, split_formula
@@ -677,7 +678,10 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         comments.append(item)
         comments_on.setdefault(c.on, []).append(item)
     sheets = []
+    stage = "PDF" if target == "pdf" else "site"
     for index, sheet in enumerate(package.sheets):
+        _progress.current().show(f"{stage}: sheet {sheet.spec.id} ({index + 1} of "
+                                 f"{len(package.sheets)}), typesetting its blocks", force=True)
         shared: dict = {}  # a list input written once and used by several blocks prints once
         blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings, shared)
                   for b in sheet.blocks]
@@ -817,6 +821,7 @@ def render_site(view: dict, out_dir: Path) -> list[Path]:
     written.append(index)
     template = env.get_template("sheet.html")
     for sheet in view["sheets"]:
+        _progress.current().show(f"site: writing {sheet['page']}")
         path = out_dir / sheet["page"]
         path.write_text(template.render(view=view, sheet=sheet, page=sheet["page"]),
                         encoding="utf-8")
