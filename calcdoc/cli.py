@@ -333,6 +333,11 @@ def _available_cores() -> int:
         return os.cpu_count() or 1
 
 
+def cmd_serve(args) -> int:
+    from calcdoc.serve import serve
+    return serve(args.project, port=args.port, out=args.out)
+
+
 def cmd_sign(args) -> int:
     from calcdoc.seal import passphrase_from_environment, sign_package
     key = Path(args.key)
@@ -417,6 +422,14 @@ def parser() -> argparse.ArgumentParser:
     v.add_argument("--json", action="store_true",
                    help="print every package's status, differences and error as JSON")
     v.set_defaults(func=cmd_verify)
+    sv = sub.add_parser("serve", help="preview the site on 127.0.0.1, rebuilt and reloaded as "
+                        "the project's files change")
+    sv.add_argument("project")
+    sv.add_argument("--port", type=int, default=8000,
+                    help="port on 127.0.0.1 (default 8000; 0 picks a free one)")
+    sv.add_argument("--out", help="the site's folder (default: a temporary folder, removed "
+                    "when the preview stops)")
+    sv.set_defaults(func=cmd_serve)
     s = sub.add_parser("sign", help="add a digital signature (PAdES) to a PDF package; the "
                        "key's passphrase is read from CALCDOC_KEY_PASSPHRASE")
     s.add_argument("package", help="the PDF package to sign")
