@@ -179,6 +179,11 @@ def serve(project: str | Path, port: int = 8000, out: str | Path | None = None) 
     from calcdoc.build import check_output_folder
     from calcdoc.errors import InputError, InputErrors, Location
     project = Path(project)
+    if not (project / "project.yaml").is_file():  # nothing to watch: say so before serving
+        raise InputErrors([InputError(Location(str(project)), "", "not a project folder",
+                                      "a folder with project.yaml",
+                                      "a file" if project.is_file() else
+                                      "no project.yaml there")])
     if out is not None:
         check_output_folder(Path(out))
     try:

@@ -112,3 +112,11 @@ def test_serve__rebuilds_on_edit_shows_located_error_recovers_and_stops_cleanly(
     assert out.rstrip().endswith("stopped")
     assert "Traceback" not in process.stderr.read()
     assert _get(url + "/") is None, "nothing listening once stopped"
+
+
+def test_serve_of_a_folder_without_project_yaml__exit_2_nothing_served(tmp_path, capsys):
+    (tmp_path / "empty").mkdir()
+    assert main(["serve", "empty", "--port", str(_free_port())]) == 2
+    assert capsys.readouterr().err.startswith("empty: error: not a project folder (expected a "
+                                              "folder with project.yaml, got no project.yaml "
+                                              "there)")
