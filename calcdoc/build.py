@@ -24,6 +24,7 @@ from calcdoc.archive import dumps, manifest_document, results_document
 from calcdoc.errors import FinalRefused, InputError, InputErrors, Location
 from calcdoc.evaluate import evaluate_project
 from calcdoc.model import Package
+from calcdoc.progress import current
 from calcdoc.project import read_project
 from calcdoc.render import status
 from calcdoc.render.html import (TEMPLATES, Drawings, package_view, render_package_html,
@@ -87,6 +88,7 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     out = Path(out_dir) if out_dir else Path("build") / name
     check_output_folder(out)
 
+    current().show(f"load: reading {project_dir}", force=True)
     project, errors = read_project(project_dir)
     timings["load"] = time.perf_counter() - t0
     if project is None:
@@ -112,6 +114,7 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         raise _write_error(out, exc) from None
     try:
         t = time.perf_counter()
+        current().show("site: typesetting the sheets and writing the pages", force=True)
         inputs = _input_files(project)
         for name, data in inputs.items():
             target = tmp / "inputs" / name
@@ -124,6 +127,7 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         timings["html"] = time.perf_counter() - t
         if pdf:
             t = time.perf_counter()
+            current().show("PDF: typesetting the package", force=True)
             from calcdoc.render.pdf import write_pdf  # WeasyPrint loads only when a PDF is made
             work = tmp / "assets"
             (work / "style.css").write_text((TEMPLATES / "style.css").read_text("utf-8"), "utf-8")

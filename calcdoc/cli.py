@@ -1,7 +1,8 @@
 """Command line only: parse arguments, call the library, map errors to exit codes.
 
 Exit status: 0 success; 1 a check failed (``check --strict``), ``--final`` refused, or verify/diff
-found a difference (a broken or overwritten signature among them); 2 bad input or usage (for
+found a difference (a broken or overwritten signature among them), or verify over many packages
+found one not verified (differing or refused); 2 bad input or usage (for
 sign also a missing or wrong passphrase, an unreadable key, or an --out it may not replace),
 with ``FILE:LINE:COL: error: ...`` on stderr and nothing written; 3 an internal fault (a defect
 of calcdoc: reported as one, never as a traceback unless ``CALCDOC_DEBUG`` is set).
@@ -38,8 +39,10 @@ def cmd_build(args) -> int:
         print("calcdoc: error: --final issues the whole package; it cannot be used with "
               "--sheet (expected one of them, got both)", file=sys.stderr)
         return 2
-    report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final,
-                   previous=args.previous, sheets=args.sheet)
+    from calcdoc.progress import reporter
+    with reporter():  # one updating line on stderr when it is a terminal
+        report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final,
+                       previous=args.previous, sheets=args.sheet)
     failed = [c for s in report.package.sheets for c in s.checks if not c.passed]
     times = ", ".join(f"{k} {v:.2f} s" for k, v in report.timings.items())
     print(f"built {report.out_dir} ({len(report.files)} files; {times})")
@@ -51,8 +54,10 @@ def cmd_build(args) -> int:
 def cmd_check(args) -> int:
     from calcdoc.archive import results_document
     from calcdoc.evaluate import evaluate_folder
+    from calcdoc.progress import reporter
     from calcdoc.render.printed import fill, print_check, print_value
-    package = evaluate_folder(args.project)
+    with reporter():
+        package = evaluate_folder(args.project)
     sig, system = package.project.precision, package.project.units
 
     def shown(c):
@@ -260,26 +265,77 @@ def cmd_new(args) -> int:
 
 
 def cmd_verify(args) -> int:
+    from calcdoc.verify_many import find_packages, holds_packages, is_single_package
+    several = len(args.path) > 1 or args.json or args.jobs is not None or args.scheduler
+    if not several:
+        path = Path(args.path[0])
+        # one package as before; a folder with none under it gets the one-package message
+        if is_single_package(path) or not holds_packages(path):
+            return _verify_one(args.path[0])
+    return _verify_many(args, find_packages(args.path))
+
+
+def _verify_one(path: str) -> int:
     from calcdoc.archive import verify
     notes: list[str] = []
-    lines = verify(Path(args.path), notes=notes)
+    lines = verify(Path(path), notes=notes)
     for line in notes + lines:
         print(line)
     if lines:
-        print(f"{args.path}: NOT verified — {len(lines)} difference(s) listed above")
+        print(f"{path}: NOT verified — {len(lines)} difference(s) listed above")
         return 1
-    if Path(args.path).is_dir():
-        print(f"{args.path}: verified — every file matches its SHA-256 in manifest.json, the "
+    if Path(path).is_dir():
+        print(f"{path}: verified — every file matches its SHA-256 in manifest.json, the "
               f"PDF carries the same inputs and results, and a fresh evaluation of the archived "
               f"inputs gives the recorded results")
     elif notes:
-        print(f"{args.path}: verified — the signatures hold (see above) and a fresh evaluation "
+        print(f"{path}: verified — the signatures hold (see above) and a fresh evaluation "
               f"of the attached inputs gives the attached results")
     else:
-        print(f"{args.path}: verified — a fresh evaluation of the attached inputs gives the "
+        print(f"{path}: verified — a fresh evaluation of the attached inputs gives the "
               f"attached results (the pages themselves are covered by no digest: verify the "
               f"build folder's manifest for that)")
     return 0
+
+
+def _verify_many(args, found) -> int:
+    """Every package found, as independent tasks: one line each (or --json, a list of the
+    same records) and a total. Exit 0 only when every one is verified, else 1."""
+    from calcdoc.progress import reporter
+    from calcdoc.verify_many import STATUSES, link_record, verify_packages
+    jobs = args.jobs if args.jobs is not None else _available_cores()
+    with reporter() as progress:
+        records = verify_packages(
+            found.packages, jobs=jobs, scheduler=args.scheduler,
+            on_done=lambda done, total: progress.show(f"verify: {done} of {total} packages"))
+    records += [link_record(path) for path in found.links]
+    totals = {status: sum(r.status == status for r in records) for status in STATUSES}
+    if args.json:
+        print(json.dumps([r.record() for r in records], indent=1, ensure_ascii=False))
+    else:
+        width = max(len(r.path) for r in records)
+        for r in records:
+            why = ""
+            if r.status == "differs":
+                why = f"{len(r.differences)} difference(s), first: {r.differences[0]}"
+            elif r.reason:  # the first message, without the path the line already names
+                why = r.reason.splitlines()[0].removeprefix(f"{r.path}: error: ")
+            print(f"{r.status:<8}  {r.path:<{width}}  {why}".rstrip())
+        shown = ", ".join(f"{n} {s}" for s, n in totals.items())
+        print(f"{len(records)} package{'s' if len(records) != 1 else ''}: {shown}")
+    return 0 if totals["verified"] == len(records) else 1
+
+
+def _available_cores() -> int:
+    try:
+        return len(os.sched_getaffinity(0))
+    except (AttributeError, OSError):
+        return os.cpu_count() or 1
+
+
+def cmd_serve(args) -> int:
+    from calcdoc.serve import serve
+    return serve(args.project, port=args.port, out=args.out)
 
 
 def cmd_sign(args) -> int:
@@ -303,6 +359,17 @@ def cmd_diff(args) -> int:
         if not changes:
             print("no differences in inputs, results or checks")
     return 1 if changes else 0
+
+
+def _whole_number(text: str) -> int:
+    """argparse type: a whole number of at least 1."""
+    try:
+        value = int(text)
+    except ValueError:
+        value = 0
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"expected a whole number of at least 1, got {text!r}")
+    return value
 
 
 def parser() -> argparse.ArgumentParser:
@@ -344,9 +411,25 @@ def parser() -> argparse.ArgumentParser:
     n = sub.add_parser("new", help="write a small starter project")
     n.add_argument("dir")
     n.set_defaults(func=cmd_new)
-    v = sub.add_parser("verify", help="re-evaluate an archived build or PDF and compare")
-    v.add_argument("path")
+    v = sub.add_parser("verify", help="re-evaluate archived builds or PDFs and compare; a "
+                       "folder holding many is searched, each package verified as a task")
+    v.add_argument("path", nargs="+", help="a build folder, a PDF, or a folder holding them")
+    v.add_argument("--jobs", type=_whole_number, metavar="N",
+                   help="verify N packages at a time (default: the cores available)")
+    v.add_argument("--scheduler", metavar="ADDRESS",
+                   help="verify on the Dask distributed cluster at ADDRESS (tcp://host:8786); "
+                        "its workers must see the same paths")
+    v.add_argument("--json", action="store_true",
+                   help="print every package's status, differences and error as JSON")
     v.set_defaults(func=cmd_verify)
+    sv = sub.add_parser("serve", help="preview the site on 127.0.0.1, rebuilt and reloaded as "
+                        "the project's files change")
+    sv.add_argument("project")
+    sv.add_argument("--port", type=int, default=8000,
+                    help="port on 127.0.0.1 (default 8000; 0 picks a free one)")
+    sv.add_argument("--out", help="the site's folder (default: a temporary folder, removed "
+                    "when the preview stops)")
+    sv.set_defaults(func=cmd_serve)
     s = sub.add_parser("sign", help="add a digital signature (PAdES) to a PDF package; the "
                        "key's passphrase is read from CALCDOC_KEY_PASSPHRASE")
     s.add_argument("package", help="the PDF package to sign")

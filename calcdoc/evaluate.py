@@ -13,6 +13,7 @@ from calcdoc.located import Node, plain
 from calcdoc.model import (BlockSpec, CheckResult, EvaluatedBlock, EvaluatedSheet, Package,
                            Project)
 from calcdoc.physics import PhysicsRangeError
+from calcdoc.progress import current
 from calcdoc.units import UnitProblem, dimension_text, same_dimension
 
 __all__ = ["evaluate_project", "evaluate_folder", "parse_ref"]
@@ -140,7 +141,9 @@ def evaluate_project(project: Project, errors: list[InputError] | None = None,
     failed: set[str] = set()
 
     failed.update(project.unreadable)
-    for spec in ordered:
+    progress = current()
+    for number, spec in enumerate(ordered, 1):
+        progress.show(f"evaluate: block {number} of {len(ordered)}, {spec.key} ({spec.kind})")
         block = _evaluate_block(spec, project, done, failed, errors)
         if block is None:
             failed.add(spec.key)

@@ -63,7 +63,7 @@ and every step as printed, re-doable from its printed numbers).
 | status | meaning |
 | --- | --- |
 | 0 | success |
-| 1 | a check failed (`check --strict`), `--final` refused, or `verify`/`diff` found a difference |
+| 1 | a check failed (`check --strict`), `--final` refused, `verify`/`diff` found a difference, or `verify` of many packages found one that differs or was refused |
 | 2 | bad input or usage: located messages on standard error, nothing written |
 | 3 | an internal fault of calcdoc (a defect: please report it; `CALCDOC_DEBUG=1` shows the details) |
 

@@ -35,6 +35,7 @@ from calcdoc.physics.thermal_laws import (LAW_TEMPERATURE_RANGE, ZERO_CELSIUS, T
                                           steel_conductivity, steel_specific_heat)
 from calcdoc.physics.transient import (DEFAULT_MIN_CELLS, FireExposure, HeldTemperature, Layer,
                                        check_convergence)
+from calcdoc.progress import time_steps
 from calcdoc.references import Cite
 
 __all__ = ["KINDS", "WALL_FIRE_EXPOSURE", "PROFILE_TIMES"]
@@ -459,7 +460,7 @@ def _compute_wall(inp, out):
         insulation_rise=inp.insulation_rise,
         decay_insulation_rise=None if decay_rise is None else decay_rise.si,
         decay_from=decay_from, cell_size=inp.cell_size, min_cells=DEFAULT_MIN_CELLS,
-        time_step=inp.time_step)
+        time_step=inp.time_step, on_step=time_steps(out.block_key or "fire wall", duration))
     run = check.base
     out.simulated_until = duration
 

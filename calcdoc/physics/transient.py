@@ -341,6 +341,7 @@ def solve_transient(
     table_spacing: float = DEFAULT_TABLE_SPACING,
     tolerance: float = 1e-3,
     max_iterations: int = 30,
+    on_step: Callable[[float], None] | None = None,
 ) -> TransientResult:
     r"""Return temperature histories of a layered element heated on one face (implicit FV).
 
@@ -390,6 +391,9 @@ def solve_transient(
         Picard convergence: largest temperature change between iterates [K].
     max_iterations : int
         Iterations before a step is split in two [-].
+    on_step : callable, optional
+        Called with the time reached [s] after each step, for a progress display; it must not
+        change anything the solver uses.
 
     Returns
     -------
@@ -608,6 +612,8 @@ def solve_transient(
         x_before, x = x, x_new
         previous_dt = dt
         history[n] = x
+        if on_step is not None:
+            on_step(float(times[n]))
         heat_in[n] = heat_in[n - 1] + q_in * dt
         heat_out[n] = heat_out[n - 1] + q_out * dt
 

@@ -23,6 +23,7 @@ import nh3
 from markupsafe import Markup, escape
 
 from calcdoc import __version__
+from calcdoc import progress as _progress
 from calcdoc.data import Value
 from calcdoc.expressions import CONSTANTS, parse_expression, symbol_latex, to_latex
 from calcdoc.render.math import formula_width_pt, mathml, pdf_math, split_formula
@@ -36,9 +37,13 @@ from calcdoc.render.status import signoff_state
 __all__ = ["package_view", "render_site", "render_package_html", "environment", "TEMPLATES",
            "CAUTION", "PRELIMINARY", "sheet_page_name", "notes_html", "initials", "Citations"]
 
-TEMPLATES = Path(__file__).resolve().parent.parent.parent / "templates"
-if not TEMPLATES.is_dir():  # installed as a wheel: templates are package data
-    TEMPLATES = Path(__file__).resolve().parent.parent / "templates"
+# Installed from a wheel, the templates are package data (calcdoc/templates, mapped from the
+# repository's templates/ by pyproject.toml); in a checkout they are the repository's own. The
+# package's copy is looked for first: beside an installed calcdoc, site-packages/templates may be
+# another distribution's folder.
+TEMPLATES = Path(__file__).resolve().parent.parent / "templates"
+if not (TEMPLATES / "style.css").is_file():
+    TEMPLATES = Path(__file__).resolve().parent.parent.parent / "templates"
 
 CAUTION = ("These calculations support, and do not replace, the judgement of a licensed "
            "engineer and the requirements of the local building code and the authority having "
@@ -684,7 +689,10 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         comments.append(item)
         comments_on.setdefault(c.on, []).append(item)
     sheets = []
+    stage = "PDF" if target == "pdf" else "site"
     for index, sheet in enumerate(package.sheets):
+        _progress.current().show(f"{stage}: sheet {sheet.spec.id} ({index + 1} of "
+                                 f"{len(package.sheets)}), typesetting its blocks", force=True)
         shared: dict = {}  # a list input written once and used by several blocks prints once
         blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings, shared)
                   for b in sheet.blocks]
@@ -824,6 +832,7 @@ def render_site(view: dict, out_dir: Path) -> list[Path]:
     written.append(index)
     template = env.get_template("sheet.html")
     for sheet in view["sheets"]:
+        _progress.current().show(f"site: writing {sheet['page']}")
         path = out_dir / sheet["page"]
         path.write_text(template.render(view=view, sheet=sheet, page=sheet["page"]),
                         encoding="utf-8")

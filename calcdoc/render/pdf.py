@@ -21,6 +21,8 @@ from urllib.parse import unquote, urlsplit
 import weasyprint
 from weasyprint.urls import FatalURLFetchingError, URLFetcher
 
+from calcdoc.progress import weasyprint_pages
+
 __all__ = ["write_pdf", "ConfinedFetcher", "ResourceRefused"]
 
 LOGGER = logging.getLogger("calcdoc.pdf")
@@ -60,6 +62,12 @@ class ConfinedFetcher(URLFetcher):
 def write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[str, bytes]],
               revision_date: str, digest_seed: str) -> None:
     """Render ``html`` (with style.css in ``work_dir``) to ``target`` as PDF/A-3b."""
+    with weasyprint_pages():  # 'PDF: laying out page N' on a terminal
+        _write_pdf(html, work_dir, target, attachments, revision_date, digest_seed)
+
+
+def _write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[str, bytes]],
+               revision_date: str, digest_seed: str) -> None:
     fetcher = ConfinedFetcher(work_dir)
     when = _fixed_datetime(revision_date)
     files = [weasyprint.Attachment(string=data, name=name, description=_describe(name),
