@@ -25,7 +25,7 @@ from markupsafe import Markup, escape
 from calcdoc import __version__
 from calcdoc.data import Value
 from calcdoc.expressions import CONSTANTS, parse_expression, symbol_latex, to_latex
-from calcdoc.render.math import formula_width_pt, mathml, pdf_math, split_formula
+from calcdoc.render.math import fits_width, formula_width_pt, mathml, pdf_math, split_formula
 from calcdoc.render.plots import draw
 from calcdoc.render.numbers import pretty_unit, pretty_written
 from calcdoc.render.printed import PrintedStep, fill, print_check, print_value
@@ -173,17 +173,22 @@ def _working_lines(segments: list[str], width: float) -> list[str]:
 
 
 def _fits(latex: str, width: float) -> bool:
-    return formula_width_pt(latex) <= width
+    return fits_width(latex, width)
+
+
+_SMALLEST = 0.66  # the smallest a line of working is set to fit its column, of its size
 
 
 def _fitted(math, latex: str, width: float) -> Markup:
     """A line of working that cannot be broken (a wide fraction) and is wider than its column,
     set smaller to fit it (down to two thirds of its size) instead of running over."""
-    wide = formula_width_pt(latex)
     shown = math(latex)
-    if wide <= width:
+    if fits_width(latex, width):
         return shown
-    scale = max(width / wide, 0.66)
+    # the scale is printed, so it is measured, unless the formula is surely wide enough to be
+    # set at the smallest size
+    scale = _SMALLEST if not fits_width(latex, width / _SMALLEST) else max(
+        width / formula_width_pt(latex), _SMALLEST)
     return Markup(f'<span class="fit" style="font-size: {100 * scale:.0f}%">{shown}</span>')
 
 
