@@ -26,7 +26,7 @@ from calcdoc.evaluate import evaluate_project
 from calcdoc.model import Package
 from calcdoc.project import read_project
 from calcdoc.render import status
-from calcdoc.render.html import (TEMPLATES, Drawings, package_view, render_package_html,
+from calcdoc.render.html import (Drawings, package_view, render_package_html,
                                  render_site)
 from calcdoc.render.printed import print_check
 
@@ -125,11 +125,12 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         if pdf:
             t = time.perf_counter()
             from calcdoc.render.pdf import write_pdf  # WeasyPrint loads only when a PDF is made
-            work = tmp / "assets"
-            (work / "style.css").write_text((TEMPLATES / "style.css").read_text("utf-8"), "utf-8")
+            # the print document beside the PDF: what WeasyPrint renders, with the site's
+            # stylesheet (assets/style.css), for a reviewer or a benchmark to render again
             html = render_package_html(package_view(package, "pdf", drawings, changes))
+            (tmp / "package.html").write_text(html, encoding="utf-8")
             attachments = sorted(inputs.items()) + [("results.json", results_text.encode())]
-            write_pdf(html, work, tmp / "package.pdf", attachments, project.revision.date,
+            write_pdf(html, tmp, tmp / "package.pdf", attachments, project.revision.date,
                       digest_seed=results_text)
             timings["pdf"] = time.perf_counter() - t
         (tmp / MARKER).write_text("calcdoc build folder: calcdoc may replace it on rebuild\n")
