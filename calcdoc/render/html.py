@@ -825,6 +825,11 @@ def render_site(view: dict, out_dir: Path) -> list[Path]:
     return written
 
 
-def render_package_html(view: dict) -> str:
-    """Return the one HTML document that WeasyPrint paginates into the PDF package."""
-    return environment().get_template("package.html").render(view=view)
+def render_package_html(view: dict, part: dict | None = None,
+                        page_of: dict[str, int] | None = None) -> str:
+    """Return the one HTML document that WeasyPrint paginates into the PDF package, or one
+    part of it: ``part`` {"front": bool, "sheets": ids, "back": bool} selects the cover and
+    contents, sheets and appendices typeset alone; ``page_of`` gives the contents' page
+    numbers written out (anchor → page), for a part whose targets are in other parts."""
+    return environment().get_template("package.html").render(view=view, part=part,
+                                                             page_of=page_of)
