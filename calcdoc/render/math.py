@@ -29,6 +29,8 @@ import latex2mathml.converter
 import ziamath
 from markupsafe import Markup, escape
 
+from calcdoc.render.memo import memoised
+
 __all__ = ["mathml", "svg_img", "html_math", "pdf_math", "UnsupportedFormula", "formula_width_pt",
            "fits_width", "split_formula", "FORMULA_PT"]
 
@@ -134,7 +136,7 @@ def _mark_prefix_signs(root: ET.Element) -> None:
             previous = child
 
 
-@lru_cache(maxsize=8192)
+@memoised("mathml")
 def _mathml_text(latex: str) -> str:
     """Return the MathML (display style, inline) that both the site and the PDF draw."""
     # latex2mathml drops mathvariant for a one-letter \mathrm{K}, which then shows as an italic
@@ -184,7 +186,7 @@ def mathml(latex: str) -> Markup:
     return Markup(_mathml_text(latex))
 
 
-@lru_cache(maxsize=8192)
+@memoised("svg", encode=list, decode=tuple)
 def _svg(latex: str, size_pt: float) -> tuple[str, float, float, float]:
     """Return (svg, width_pt, height_pt, depth_pt) of the formula; depth is below the baseline."""
     svg = ziamath.Math(_mathml_text(latex), size=size_pt * _PX_PER_PT).svg()
@@ -281,7 +283,7 @@ def _space_em(text: str | None) -> float:
     return float(match.group(1)) if match else 0.0
 
 
-@lru_cache(maxsize=16384)
+@memoised("metric")
 def _metric_width_pt(latex: str, size_pt: float = FORMULA_PT) -> float:
     """Return about the width ziamath draws the formula [pt], from glyph advances and the
     spacing rules it applies (operator spaces, script scale, fraction padding)."""
@@ -903,6 +905,7 @@ def html_math(latex: str) -> Markup:
 _ITALIC_JOIN = re.compile("</i>([\u2005\u2006\u2009\u202f]*)<i>")
 
 
+@memoised("pdf", encode=str, decode=Markup)
 def pdf_math(latex: str) -> Markup:
     """Return the formula for the PDF: text where ``html_math`` draws it, else the image."""
     try:
