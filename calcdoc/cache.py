@@ -39,6 +39,7 @@ _LIBRARIES = ("latex2mathml", "ziamath", "ziafont", "matplotlib", "weasyprint", 
 
 def cache_folder(out: Path) -> Path:
     """Return the cache folder of an output folder: ``build/x`` → ``build/x.cache``."""
+    out = Path(out).resolve()  # "." has no name: the cache would land inside the output
     return out.parent / f"{out.name}.cache"
 
 
