@@ -6,7 +6,7 @@ but the build cache on disk). Reported:
 1. the demo: cold full build, warm full rebuild with nothing changed, warm full rebuild after one
    sheet changed (EW1's PIR board thickened, which HG1 refers to), the same for HTML only;
 2. generated projects of SIZES sheets (copies of the demo's sheets with new ids, references
-   renamed, each copy's layer thicknesses shifted a little so that its numbers differ):
+   renamed, each copy's layer thicknesses shifted so that its numbers differ, to 216 sheets):
    `calcdoc check` (load and evaluate), cold HTML-only build, time per sheet, peak memory; and
    for the 100-sheet project a warm HTML rebuild after one sheet changed;
 3. full builds (with the PDF) of FULL_SIZES sheets: time per sheet and per page.
@@ -93,9 +93,10 @@ def generate(folder: Path, count: int) -> Path:
         copy, index = divmod(n, len(sheets))
         name, text = sheets[index]
         text = pattern.sub(lambda m: f"{m.group(1)}G{copy}", text)
-        if copy:  # numbers of their own: the copy's layers 1 to 4 mm thicker
+        if copy:  # numbers of their own (to 24 copies, 216 sheets): layers 1 to 24 mm thicker,
+            # so that a copy's formulas are typeset afresh, not found in the memo
             text = re.sub(r"(thickness:\s*)(\d+(?:\.\d+)?)(\s*mm)",
-                          lambda m: f"{m.group(1)}{float(m.group(2)) + 1 + copy % 4:g}"
+                          lambda m: f"{m.group(1)}{float(m.group(2)) + 1 + (copy - 1) % 24:g}"
                                     f"{m.group(3)}", text)
         target = f"sheets/g{copy}-{name}"
         (folder / target).write_text(text, encoding="utf-8")
