@@ -1,56 +1,246 @@
-"""Time the demo package's stages: load, evaluate, HTML, PDF; print the figures.
+"""Time builds of the demo and of generated projects; print ratios measured in this one run.
 
-Targets (not enforced by tests): HTML should feel instant (well under 1 s after start-up), the PDF
-a few seconds. Run: .venv/bin/python bench/bench_build.py [PROJECT]
+Every build runs in a fresh Python process (its own memory peak, nothing kept between builds
+but the build cache on disk). Reported:
+
+1. the demo: cold full build, warm full rebuild with nothing changed, warm full rebuild after one
+   sheet changed (EW1's PIR board thickened, which HG1 refers to), the same for HTML only;
+2. generated projects of SIZES sheets (copies of the demo's sheets with new ids, references
+   renamed, each copy's layer thicknesses shifted so that its numbers differ, to 216 sheets):
+   `calcdoc check` (load and evaluate), cold HTML-only build, time per sheet, peak memory; and
+   for the 100-sheet project a warm HTML rebuild after one sheet changed;
+3. full builds (with the PDF) of FULL_SIZES sheets: time per sheet and per page.
+
+Generated projects live in a temporary folder and are removed. No targets are enforced here or in
+tests (a shared machine is noisy): the ratios are the result. Run:
+
+    .venv/bin/python bench/bench_build.py [--sizes 50,100,200] [--full-sizes 50,100,200]
+                                          [--huge] [--skip-demo]
+
+``--huge`` adds a 1000-sheet HTML-only build.
 """
 
 from __future__ import annotations
 
-import resource
+import argparse
+import json
+import math
+import os
+import platform
+import re
+import shutil
+import subprocess
 import sys
 import tempfile
 import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
-sys.path.insert(0, str(ROOT))
+DEMO = ROOT / "projects" / "cold-store"
+
+# One build in a process of its own; prints JSON: seconds, stage timings, peak memory.
+CHILD = r"""
+import json, resource, sys, time
+args = json.loads(sys.argv[1])
+t = time.perf_counter()
+if args["what"] == "check":
+    from calcdoc.project import read_project
+    from calcdoc.evaluate import evaluate_project
+    project, errors = read_project(args["project"])
+    evaluate_project(project, errors, None)
+    timings = {}
+else:
+    from calcdoc.build import build
+    report = build(args["project"], args["out"], pdf=args["pdf"], cache=args["cache"])
+    timings = report.timings
+pages = 0
+if args.get("pdf"):
+    from pypdf import PdfReader
+    pages = len(PdfReader(args["out"] + "/package.pdf").pages)
+print(json.dumps({"seconds": time.perf_counter() - t, "timings": timings, "pages": pages,
+                  "peak_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024}))
+"""
+
+
+def run(what: str, project: Path, out: Path | None = None, pdf: bool = False,
+        cache: bool = True) -> dict:
+    args = {"what": what, "project": str(project), "out": str(out) if out else None,
+            "pdf": pdf, "cache": cache}
+    env = {**os.environ, "PYTHONPATH": str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", "")}
+    done = subprocess.run([sys.executable, "-c", CHILD, json.dumps(args)], capture_output=True,
+                          text=True, env=env, cwd=str(project.parent))
+    if done.returncode != 0:
+        raise SystemExit(f"{what} of {project} failed:\n{done.stderr[-3000:]}")
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
+def demo_sheets() -> list[tuple[str, str]]:
+    """The demo's sheets in package order: (file name, text)."""
+    text = (DEMO / "project.yaml").read_text(encoding="utf-8")
+    names = re.findall(r"^\s+- (sheets/[\w.-]+\.yaml)\s*$", text, flags=re.M)
+    return [(Path(n).name, (DEMO / n).read_text(encoding="utf-8")) for n in names]
+
+
+def generate(folder: Path, count: int) -> Path:
+    """Write a project of ``count`` sheets: copies of the demo's sheets, in its order (a sheet
+    comes after those it refers to), each copy with new ids and its references renamed."""
+    sheets = demo_sheets()
+    ids = [re.search(r"^id:\s*(\S+)", t, flags=re.M).group(1) for _, t in sheets]
+    pattern = re.compile(r"\b(" + "|".join(map(re.escape, ids)) + r")\b")
+    (folder / "sheets").mkdir(parents=True)
+    listed = []
+    for n in range(count):
+        copy, index = divmod(n, len(sheets))
+        name, text = sheets[index]
+        text = pattern.sub(lambda m: f"{m.group(1)}G{copy}", text)
+        if copy:  # numbers of their own (to 24 copies, 216 sheets): layers 1 to 24 mm thicker,
+            # so that a copy's formulas are typeset afresh, not found in the memo
+            text = re.sub(r"(thickness:\s*)(\d+(?:\.\d+)?)(\s*mm)",
+                          lambda m: f"{m.group(1)}{float(m.group(2)) + 1 + (copy - 1) % 24:g}"
+                                    f"{m.group(3)}", text)
+        target = f"sheets/g{copy}-{name}"
+        (folder / target).write_text(text, encoding="utf-8")
+        listed.append(target)
+    project = (DEMO / "project.yaml").read_text(encoding="utf-8")
+    head, rest = project.split("  sheets:\n", 1)
+    rest = rest[rest.index("revisions:"):]
+    (folder / "project.yaml").write_text(
+        head + "  sheets:\n" + "".join(f"    - {s}\n" for s in listed) + rest, encoding="utf-8")
+    return folder
+
+
+def change_first_sheet(project: Path) -> None:
+    """Thicken the first EW1 copy's PIR board (the one-sheet change of a warm rebuild)."""
+    path = sorted((project / "sheets").glob("g0-ew1.yaml"))[0]
+    text = path.read_text(encoding="utf-8")
+    path.write_text(re.sub(r"(PIR cavity board, thickness: )(\d+)", lambda m: m.group(1)
+                           + str(int(m.group(2)) + 10), text, count=1), encoding="utf-8")
+
+
+def line(label: str, seconds: float, extra: str = "") -> None:
+    print(f"  {label:<44} {seconds:8.2f} s  {extra}")
+
+
+def bench_demo(tmp: Path) -> dict:
+    print("demo (9 sheets), full builds with the PDF")
+    project = tmp / "demo"
+    shutil.copytree(DEMO, project)
+    out = tmp / "demo-out"
+    cold = run("build", project, out, pdf=True)
+    line("cold full build", cold["seconds"], f"({cold['pages']} pages, "
+         f"pdf stage {cold['timings'].get('pdf', 0):.1f} s)")
+    same = run("build", project, out, pdf=True)
+    line("warm full rebuild, nothing changed", same["seconds"])
+    ew1 = project / "sheets" / "ew1.yaml"
+    ew1.write_text(ew1.read_text(encoding="utf-8").replace(
+        "PIR cavity board, thickness: 50 mm", "PIR cavity board, thickness: 60 mm"),
+        encoding="utf-8")
+    one = run("build", project, out, pdf=True)
+    line("warm full rebuild, one sheet changed", one["seconds"])
+    html_cold = run("build", project, tmp / "demo-html", pdf=False)
+    ew1.write_text(ew1.read_text(encoding="utf-8").replace(
+        "PIR cavity board, thickness: 60 mm", "PIR cavity board, thickness: 70 mm"),
+        encoding="utf-8")
+    html_one = run("build", project, tmp / "demo-html", pdf=False)
+    line("cold HTML-only build", html_cold["seconds"])
+    line("warm HTML-only rebuild, one sheet changed", html_one["seconds"])
+    return {"full_cold": cold["seconds"], "full_same": same["seconds"],
+            "full_one": one["seconds"], "html_cold": html_cold["seconds"],
+            "html_one": html_one["seconds"]}
+
+
+def bench_scale(tmp: Path, sizes: list[int]) -> dict:
+    print("generated projects, HTML-only builds (cold: no cache)")
+    rows = {}
+    for n in sizes:
+        project = generate(tmp / f"p{n}", n)
+        check = run("check", project)
+        cold = run("build", project, tmp / f"p{n}-out", pdf=False)
+        rows[n] = {"check": check["seconds"], "html": cold["seconds"],
+                   "peak_mb": cold["peak_mb"], "check_peak_mb": check["peak_mb"]}
+        line(f"{n} sheets: check", check["seconds"], f"peak {check['peak_mb']:.0f} MB")
+        line(f"{n} sheets: cold HTML build", cold["seconds"],
+             f"{cold['seconds'] / n:.3f} s per sheet, peak {cold['peak_mb']:.0f} MB")
+        if n == 100 or (100 not in sizes and n == sizes[0]):
+            change_first_sheet(project)
+            warm = run("build", project, tmp / f"p{n}-out", pdf=False)
+            rows[n]["html_one"] = warm["seconds"]
+            line(f"{n} sheets: warm HTML rebuild, one sheet changed", warm["seconds"],
+                 f"peak {warm['peak_mb']:.0f} MB")
+        shutil.rmtree(tmp / f"p{n}-out", ignore_errors=True)
+    return rows
+
+
+def bench_full(tmp: Path, sizes: list[int]) -> dict:
+    print("generated projects, full builds with the PDF (cold: no cache)")
+    rows = {}
+    for n in sizes:
+        project = tmp / f"p{n}" if (tmp / f"p{n}").is_dir() else generate(tmp / f"p{n}", n)
+        full = run("build", project, tmp / f"f{n}-out", pdf=True, cache=False)
+        rows[n] = {"full": full["seconds"], "pages": full["pages"], "peak_mb": full["peak_mb"],
+                   "pdf": full["timings"].get("pdf", 0.0)}
+        line(f"{n} sheets: cold full build", full["seconds"],
+             f"{full['seconds'] / n:.2f} s per sheet, {full['pages']} pages, "
+             f"peak {full['peak_mb']:.0f} MB")
+        shutil.rmtree(tmp / f"f{n}-out", ignore_errors=True)
+    return rows
+
+
+def ratios(demo: dict | None, scale: dict, full: dict) -> None:
+    print("ratios (this run)")
+
+    def show(label: str, value: float) -> None:
+        print(f"  {label:<64} {value:6.2f}")
+
+    if demo:
+        show("demo: warm full rebuild, one sheet changed / cold full build",
+             demo["full_one"] / demo["full_cold"])
+        show("demo: warm full rebuild, nothing changed / cold full build",
+             demo["full_same"] / demo["full_cold"])
+        show("demo: warm HTML rebuild, one sheet changed / cold HTML build",
+             demo["html_one"] / demo["html_cold"])
+    for n, row in scale.items():
+        if "html_one" in row:
+            show(f"{n} sheets: warm HTML rebuild, one sheet changed / cold HTML build",
+                 row["html_one"] / row["html"])
+        show(f"{n} sheets: cold HTML build / check", row["html"] / row["check"])
+    sizes = sorted(scale)
+    for a, b in zip(sizes, sizes[1:]):
+        show(f"HTML build {b} / {a} sheets (linear: {b / a:.1f})",
+             scale[b]["html"] / scale[a]["html"])
+        show(f"HTML time per sheet {b} / {a} sheets (flat: 1.0)",
+             (scale[b]["html"] / b) / (scale[a]["html"] / a))
+        show(f"HTML peak memory {b} / {a} sheets", scale[b]["peak_mb"] / scale[a]["peak_mb"])
+    fsizes = sorted(full)
+    for a, b in zip(fsizes, fsizes[1:]):
+        show(f"full build {b} / {a} sheets (linear: {b / a:.1f})", full[b]["full"] / full[a]["full"])
+        show(f"full time per sheet {b} / {a} sheets (flat: 1.0)",
+             (full[b]["full"] / b) / (full[a]["full"] / a))
+        show(f"full peak memory {b} / {a} sheets", full[b]["peak_mb"] / full[a]["peak_mb"])
 
 
 def main() -> None:
-    project = Path(sys.argv[1]) if len(sys.argv) > 1 else ROOT / "projects" / "cold-store"
-    t = time.perf_counter()
-    from calcdoc.build import build  # noqa: E402  (import time is part of what a user waits for)
-    from calcdoc.evaluate import evaluate_project
-    from calcdoc.project import load_project
-    import_time = time.perf_counter() - t
-
-    t = time.perf_counter()
-    loaded = load_project(project)
-    load_time = time.perf_counter() - t
-    t = time.perf_counter()
-    evaluate_project(loaded)
-    eval_time = time.perf_counter() - t
-
-    with tempfile.TemporaryDirectory() as tmp:
-        html = build(project, Path(tmp) / "html", pdf=False)
-        full = build(project, Path(tmp) / "full", pdf=True)
-        pages = 0
-        try:
-            from pypdf import PdfReader
-            pages = len(PdfReader(str(Path(tmp) / "full" / "package.pdf")).pages)
-        except ImportError:
-            pass
-    peak_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
-    print(f"project: {project}")
-    print(f"import calcdoc          {import_time:7.3f} s")
-    print(f"load                    {load_time:7.3f} s")
-    print(f"evaluate                {eval_time:7.3f} s")
-    print(f"build --no-pdf (total)  {html.timings['total']:7.3f} s  "
-          f"(html {html.timings['html']:.3f} s)")
-    print(f"build with PDF (total)  {full.timings['total']:7.3f} s  "
-          f"(pdf {full.timings['pdf']:.3f} s, {pages} pages, "
-          f"{full.timings['pdf'] / max(pages, 1):.3f} s per page)")
-    print(f"peak memory             {peak_mb:7.0f} MB")
+    parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
+    parser.add_argument("--sizes", default="50,100,200",
+                        help="sheet counts of the HTML-only builds (default 50,100,200)")
+    parser.add_argument("--full-sizes", default="50,100,200",
+                        help="sheet counts of the full builds (default 50,100,200; '' none)")
+    parser.add_argument("--huge", action="store_true", help="add a 1000-sheet HTML build")
+    parser.add_argument("--skip-demo", action="store_true")
+    args = parser.parse_args()
+    sizes = [int(s) for s in args.sizes.split(",") if s] + ([1000] if args.huge else [])
+    full_sizes = [int(s) for s in args.full_sizes.split(",") if s]
+    print(f"machine: {platform.machine()}, {os.cpu_count()} cores, Python "
+          f"{platform.python_version()}; load average {os.getloadavg()[0]:.1f} "
+          f"(a shared machine: compare ratios, not seconds)")
+    started = time.perf_counter()
+    with tempfile.TemporaryDirectory(prefix="calcdoc-bench-") as folder:
+        tmp = Path(folder)
+        demo = None if args.skip_demo else bench_demo(tmp)
+        scale = bench_scale(tmp, sizes) if sizes else {}
+        full = bench_full(tmp, full_sizes) if full_sizes else {}
+    ratios(demo, scale, full)
+    print(f"bench time {math.ceil(time.perf_counter() - started)} s")
 
 
 if __name__ == "__main__":

@@ -21,14 +21,16 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from calcdoc.archive import dumps, manifest_document, results_document
+from calcdoc.cache import BuildCache, cache_folder
 from calcdoc.errors import FinalRefused, InputError, InputErrors, Location
 from calcdoc.evaluate import evaluate_project
 from calcdoc.model import Package
 from calcdoc.progress import current
 from calcdoc.project import read_project
 from calcdoc.render import status
-from calcdoc.render.html import (TEMPLATES, Drawings, package_view, render_package_html,
+from calcdoc.render.html import (Drawings, package_view, render_package_html,
                                  render_site)
+from calcdoc.render.memo import MEMO
 from calcdoc.render.printed import print_check
 
 __all__ = ["build", "final_refusals", "MARKER", "BuildReport", "check_output_folder", "swap_in",
@@ -73,14 +75,17 @@ def check_output_folder(out_dir: Path) -> None:
 
 def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool = True,
           final: bool = False, previous: str | Path | None = None,
-          sheets: list[str] | None = None) -> BuildReport:
+          sheets: list[str] | None = None, cache: bool = True) -> BuildReport:
     """Build the package; raise InputErrors (bad input) or FinalRefused (--final refused).
 
     ``previous`` is the build (folder or PDF) of the previous issued revision: every input,
     result and check changed since then is marked with the current revision in the margin,
     and the changes are listed under the current revision on the cover. ``sheets`` builds
     only those sheets (and evaluates what they refer to): a partial package, marked so, in a
-    fraction of the time (default output folder build/<project>-<SHEET>/)."""
+    fraction of the time (default output folder build/<project>-<SHEET>/). ``cache`` keeps
+    what was typeset and drawn for each sheet, and the PDF, in ``<out>.cache/`` beside the
+    output folder (:mod:`calcdoc.cache`), so that a rebuild typesets only what changed;
+    ``cache=False`` neither reads nor writes it."""
     timings: dict[str, float] = {}
     t0 = time.perf_counter()
     project_dir = Path(project_dir)
@@ -100,6 +105,15 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         reasons = final_refusals(package)
         if reasons:
             raise FinalRefused(reasons)
+    MEMO.clear()  # answers of an earlier build in this process are not this build's
+    store = BuildCache(cache_folder(out)) if cache else None
+    sheet_keys, loaded = {}, {}
+    if store is not None:
+        for sheet in package.sheets:
+            key = sheet_keys[sheet.id] = store.sheet_key(package, sheet)
+            answers = loaded[sheet.id] = store.load_sheet(key)
+            if answers:
+                MEMO.seed(answers)
     changes = None
     if previous is not None:
         from calcdoc.archive import archive_package, open_archive
@@ -129,12 +143,23 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
             t = time.perf_counter()
             current().show("PDF: typesetting the package", force=True)
             from calcdoc.render.pdf import write_pdf  # WeasyPrint loads only when a PDF is made
-            work = tmp / "assets"
-            (work / "style.css").write_text((TEMPLATES / "style.css").read_text("utf-8"), "utf-8")
+            # the print document beside the PDF: what WeasyPrint renders, with the site's
+            # stylesheet (assets/style.css), for a reviewer or a benchmark to render again
             html = render_package_html(package_view(package, "pdf", drawings, changes))
+            (tmp / "package.html").write_text(html, encoding="utf-8")
             attachments = sorted(inputs.items()) + [("results.json", results_text.encode())]
-            write_pdf(html, work, tmp / "package.pdf", attachments, project.revision.date,
-                      digest_seed=results_text)
+            pdf_key = cached = None
+            if store is not None:
+                pdf_key = store.pdf_key(html, (tmp / "assets" / "style.css").read_bytes(),
+                                        attachments, project.revision.date, results_text)
+                cached = store.load_pdf(pdf_key)
+            if cached is not None:
+                (tmp / "package.pdf").write_bytes(cached)
+            else:
+                write_pdf(html, tmp, tmp / "package.pdf", attachments, project.revision.date,
+                          digest_seed=results_text)
+                if store is not None:
+                    store.store_pdf(pdf_key, (tmp / "package.pdf").read_bytes())
             timings["pdf"] = time.perf_counter() - t
         (tmp / MARKER).write_text("calcdoc build folder: calcdoc may replace it on rebuild\n")
         outputs = {str(p.relative_to(tmp)): p.read_bytes() for p in sorted(tmp.rglob("*"))
@@ -149,6 +174,11 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
+    if store is not None:
+        for sheet_id, key in sheet_keys.items():
+            if MEMO.used.get(sheet_id, {}) != (loaded.get(sheet_id) or {}):
+                store.store_sheet(key, MEMO.used.get(sheet_id, {}))
+        store.prune()
     timings["total"] = time.perf_counter() - t0
     files = sorted(str(p.relative_to(out)) for p in out.rglob("*") if p.is_file())
     return BuildReport(out, package, timings, files)

@@ -42,7 +42,7 @@ def cmd_build(args) -> int:
     from calcdoc.progress import reporter
     with reporter():  # one updating line on stderr when it is a terminal
         report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final,
-                       previous=args.previous, sheets=args.sheet)
+                       previous=args.previous, sheets=args.sheet, cache=not args.no_cache)
     failed = [c for s in report.package.sheets for c in s.checks if not c.passed]
     times = ", ".join(f"{k} {v:.2f} s" for k, v in report.timings.items())
     print(f"built {report.out_dir} ({len(report.files)} files; {times})")
@@ -381,6 +381,9 @@ def parser() -> argparse.ArgumentParser:
     b.add_argument("project")
     b.add_argument("--out", help="output folder (default build/<project name>)")
     b.add_argument("--no-pdf", action="store_true", help="skip the PDF")
+    b.add_argument("--no-cache", action="store_true",
+                   help="neither read nor write the build cache (<out>.cache beside the "
+                        "output folder): typeset and draw everything afresh")
     b.add_argument("--sheet", action="append", metavar="ID",
                    help="build only this sheet (repeat for more), with what it refers to")
     b.add_argument("--previous", metavar="BUILD",

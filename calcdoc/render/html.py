@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import ast
 import base64
+import dataclasses
 import re
 from pathlib import Path
 
@@ -26,8 +27,9 @@ from calcdoc import __version__
 from calcdoc import progress as _progress
 from calcdoc.data import Value
 from calcdoc.expressions import CONSTANTS, parse_expression, symbol_latex, to_latex
-from calcdoc.render.math import formula_width_pt, mathml, pdf_math, split_formula
-from calcdoc.render.plots import draw
+from calcdoc.render.math import fits_width, formula_width_pt, mathml, pdf_math, split_formula
+from calcdoc.render.memo import MEMO, data_digest
+from calcdoc.render.plots import Drawn, draw
 from calcdoc.render.numbers import pretty_unit, pretty_written
 from calcdoc.render.printed import PrintedStep, fill, print_check, print_value
 from calcdoc.provenance import values_to_confirm
@@ -178,17 +180,22 @@ def _working_lines(segments: list[str], width: float) -> list[str]:
 
 
 def _fits(latex: str, width: float) -> bool:
-    return formula_width_pt(latex) <= width
+    return fits_width(latex, width)
+
+
+_SMALLEST = 0.66  # the smallest a line of working is set to fit its column, of its size
 
 
 def _fitted(math, latex: str, width: float) -> Markup:
     """A line of working that cannot be broken (a wide fraction) and is wider than its column,
     set smaller to fit it (down to two thirds of its size) instead of running over."""
-    wide = formula_width_pt(latex)
     shown = math(latex)
-    if wide <= width:
+    if fits_width(latex, width):
         return shown
-    scale = max(width / wide, 0.66)
+    # the scale is printed, so it is measured, unless the formula is surely wide enough to be
+    # set at the smallest size
+    scale = _SMALLEST if not fits_width(latex, width / _SMALLEST) else max(
+        width / formula_width_pt(latex), _SMALLEST)
     return Markup(f'<span class="fit" style="font-size: {100 * scale:.0f}%">{shown}</span>')
 
 
@@ -525,7 +532,7 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
         notes.append({"text": f"As for {earlier}: {count} more statement"
                       f"{'s' if count != 1 else ''} of method and assumptions.", "cite": None,
                       "href": links.anchor(earlier)})
-    steps = _once_per_sheet(_steps_view(block.printed_steps(sig, system), math, cites, key,
+    steps = _once_per_sheet(_steps_view(figures.steps(block), math, cites, key,
                                         block.kind.open_results),
                             shared.setdefault("steps", {}), key, links)
     results = []
@@ -634,17 +641,32 @@ def _materials_view(package, cites: "Citations", links) -> list[dict]:
 
 
 class Drawings:
-    """Each block's figures drawn once per build, for both the site and the PDF."""
+    """Each block's figures and printed steps made once per build, for both the site and the
+    PDF; a figure is drawn once for its data (the same data in two blocks, or in the build
+    cache, is drawn once) and kept in :data:`~calcdoc.render.memo.MEMO`."""
 
     def __init__(self, sig: int, system: str):
         self.sig, self.system = sig, system
         self.drawn: dict[str, list] = {}
+        self.printed: dict[str, list] = {}
 
     def __call__(self, block) -> list:
         if block.key not in self.drawn:
-            self.drawn[block.key] = [draw(f, self.sig, self.system)
-                                     for f in block.output.figures]
+            self.drawn[block.key] = [self._draw(f) for f in block.output.figures]
         return self.drawn[block.key]
+
+    def _draw(self, data) -> Drawn:
+        digest = data_digest(data, self.sig, self.system)
+        if digest is None:  # data of a shape the digest does not know: drawn every time
+            return draw(data, self.sig, self.system)
+        return Drawn(**MEMO.lookup("figure", digest, lambda: dataclasses.asdict(
+            draw(data, self.sig, self.system))))
+
+    def steps(self, block) -> list:
+        """The block's steps with their numbers printed, made once for the site and the PDF."""
+        if block.key not in self.printed:
+            self.printed[block.key] = block.printed_steps(self.sig, self.system)
+        return self.printed[block.key]
 
 
 def _ref_key(ref: str, block) -> str:
@@ -694,8 +716,9 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         _progress.current().show(f"{stage}: sheet {sheet.spec.id} ({index + 1} of "
                                  f"{len(package.sheets)}), typesetting its blocks", force=True)
         shared: dict = {}  # a list input written once and used by several blocks prints once
-        blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings, shared)
-                  for b in sheet.blocks]
+        with MEMO.recording(sheet.spec.id):
+            blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings,
+                                  shared) for b in sheet.blocks]
         if changes:
             _mark_changes(blocks, changes.keys(), current)
         spec = sheet.spec
@@ -840,6 +863,11 @@ def render_site(view: dict, out_dir: Path) -> list[Path]:
     return written
 
 
-def render_package_html(view: dict) -> str:
-    """Return the one HTML document that WeasyPrint paginates into the PDF package."""
-    return environment().get_template("package.html").render(view=view)
+def render_package_html(view: dict, part: dict | None = None,
+                        page_of: dict[str, int] | None = None) -> str:
+    """Return the one HTML document that WeasyPrint paginates into the PDF package, or one
+    part of it: ``part`` {"front": bool, "sheets": ids, "back": bool} selects the cover and
+    contents, sheets and appendices typeset alone; ``page_of`` gives the contents' page
+    numbers written out (anchor → page), for a part whose targets are in other parts."""
+    return environment().get_template("package.html").render(view=view, part=part,
+                                                             page_of=page_of)

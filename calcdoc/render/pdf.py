@@ -61,7 +61,8 @@ class ConfinedFetcher(URLFetcher):
 
 def write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[str, bytes]],
               revision_date: str, digest_seed: str) -> None:
-    """Render ``html`` (with style.css in ``work_dir``) to ``target`` as PDF/A-3b."""
+    """Render ``html`` to ``target`` as PDF/A-3b; its relative links (assets/style.css) are
+    resolved in ``work_dir``, the build folder, and nothing outside it is served."""
     with weasyprint_pages():  # 'PDF: laying out page N' on a terminal
         _write_pdf(html, work_dir, target, attachments, revision_date, digest_seed)
 
