@@ -27,7 +27,7 @@ docs: $(VENV)/.installed
 	$(PY) -m calcdoc.reference docs/format.md
 
 bench: system $(VENV)/.installed
-	$(PY) bench/bench_build.py
+	$(PY) bench/bench_build.py --sizes 50,100,200 --full-sizes 18,36
 	$(PY) bench/bench_transient.py
 	$(PY) bench/bench_bridge.py
 
