@@ -99,6 +99,16 @@ def cmd_check(args) -> int:
     return 1 if failed and args.strict else 0
 
 
+# How `calcdoc kinds` lists the kinds: by the trade that reaches for them.
+KIND_GROUPS = (
+    ("Building envelope", ("layered_wall", "interstitial_condensation", "thermal_bridge")),
+    ("Building services", ("cylindrical_layers",)),
+    ("Radiation", ("surface_emission", "radiation_exchange", "view_factor", "radiant_exposure")),
+    ("Fire", ("fire_curve", "steel_member_heating", "wall_fire_exposure", "timber_member_fire")),
+    ("Your own working", ("formula",)),
+)
+
+
 def cmd_kinds(args) -> int:
     from calcdoc.kinds import registry
     from calcdoc.project import load_named_values
@@ -112,9 +122,19 @@ def cmd_kinds(args) -> int:
             print(json.dumps(docs[0] if args.kind else docs, indent=1, ensure_ascii=False))
             return 0
     if args.kind is None:
-        print("Kinds:")
-        for kind in kinds.values():
-            print(f"  {kind.name:<22} {kind.summary}")
+        width = max(len(name) for name in kinds) + 2
+        listed = set()
+        for trade, names in KIND_GROUPS:
+            print(f"{trade}:")
+            for name in names:
+                if name in kinds:
+                    listed.add(name)
+                    print(f"  {name:<{width}}{kinds[name].summary}")
+        others = [name for name in kinds if name not in listed]
+        if others:  # a kind added without a place in the groups still shows
+            print("Other kinds:")
+            for name in others:
+                print(f"  {name:<{width}}{kinds[name].summary}")
         print("\nNamed values ({named: NAME}):")
         for name, entry in load_named_values().items():
             print(f"  {name:<28} {entry['value']:<14} {entry.get('title', '')}")
@@ -218,8 +238,8 @@ def cmd_materials(args) -> int:
         category = None
         for m in chosen:
             if m.get("category", "") != category:
+                print(("\n" if category is not None else "") + f"{m.get('category') or 'other'}:")
                 category = m.get("category", "")
-                print(f"\n{category or 'other'}:")
             mark = "" if m.get("confirmed") is not False else "  [to confirm]"
             lam = shown(m, "conductivity") if "conductivity" in m else (
                 "law" if m.get("law") else "—")
