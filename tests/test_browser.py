@@ -154,6 +154,8 @@ const sources = [...document.querySelectorAll('[src]')].map(e => e.getAttribute(
 return {links, ids, maths, resources, sources,
         sidebar: !!document.querySelector('nav.sidebar a[href="index.html"]'),
         pager: !!document.querySelector('nav.pager a[rel]'),
+        scrollWidth: document.documentElement.scrollWidth,
+        clientWidth: document.documentElement.clientWidth,
         title: document.title};
 """
 
@@ -228,6 +230,14 @@ def test_every_page_has_the_contents_sidebar_and_previous_next_links(visited):
     for page, f in facts.items():
         assert f["sidebar"], f"{page}: contents sidebar"
         assert f["pager"], f"{page}: previous/next links"
+
+
+def test_no_page_scrolls_sideways_in_a_1280_px_window(visited):
+    # A reviewer reads down the page; a table or list value wider than the column hides its end.
+    facts, _ = visited
+    wide = {page: (f["scrollWidth"], f["clientWidth"]) for page, f in facts.items()
+            if f["scrollWidth"] > f["clientWidth"]}
+    assert wide == {}
 
 
 def test_every_block_and_result_has_a_stable_anchor(site, visited):

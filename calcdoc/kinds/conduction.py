@@ -583,8 +583,9 @@ def _condensation_steps(inp, out, layers, combined, R_T, R_si, R_se, T_i, T_e) -
                          phi_s, label="Relative humidity at the inside surface",
                          source=MOULD_SOURCE, yields="surface_relative_humidity",
                          symbols={"p_sat_si_sc": r"p_{sat}(\theta_{si}')"})
-    out.note("Interstitial condensation (the ISO 13788 monthly method) is not assessed by this "
-             "block.", "ISO 13788:2012")
+    out.note("Interstitial condensation (the ISO 13788 monthly method) is not part of this block: "
+             "an interstitial_condensation block assesses it over the same layers.",
+             "ISO 13788:2012")
     if margin.si < 0.0:
         out.warn("The inside surface ({surface}) is below the dew point of the inside air "
                  "({dew}): surface condensation is expected.", SATURATION_PRESSURE_SOURCE,
