@@ -687,14 +687,17 @@ def convert_fields(fields, node: Node, ctx: InputContext, path: str,
             ctx.error(node.key_locs[key], _join(path, key), f"unknown key '{key}'",
                       "one of " + ", ".join(names), repr(key), did_you_mean(key, names))
             failed = True
+    # A key written as null (`material:` with nothing after it) is absent, as it is for a
+    # field of its own; counted as present it would pass the group and leave no value at all.
+    given = {k for k, v in node.value.items() if v is not None and v.value is not None}
     for group in exactly_one:
-        present = [k for k in group if k in node.value]
+        present = [k for k in group if k in given]
         if len(present) != 1:
             ctx.error(node, path, "exactly one of " + " | ".join(group) + " is needed",
                       "exactly one", ", ".join(present) if present else "none")
             failed = True
     for group in at_most_one:
-        present = [k for k in group if k in node.value]
+        present = [k for k in group if k in given]
         if len(present) > 1:
             ctx.error(node, path, "at most one of " + " | ".join(group),
                       "at most one", ", ".join(present))
