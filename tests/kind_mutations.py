@@ -324,6 +324,9 @@ def special_mutations(sheet_id: str, sheet: dict, big: bool = True) -> list[tupl
         variant("size_layer: on a duplicated layer name", lambda s: (
             inp(s)["layers"].append(copy.deepcopy(inp(s)["layers"][-1])),
             sizing(max_q_per_length="50 W/m")(s)))
+        variant("layers: 200", lambda s: inp(s).__setitem__(
+            "layers", [dict(inp(s)["layers"][-1], name=f"L{i}", thickness="1 mm")
+                       for i in range(200)]))
         variant("inside equals ambient", lambda s: inp(s).__setitem__(
             "inside_temperature", inp(s)["ambient_temperature"]))
         variant("inside -300 degC", lambda s: inp(s).__setitem__("inside_temperature",
@@ -470,6 +473,8 @@ def special_mutations(sheet_id: str, sheet: dict, big: bool = True) -> list[tupl
             "U", {"ref": "EW1.wall.nothing"}))
         variant("flanking: U ref to a sheet not there", lambda s: inp(s, 0)["flanking"][0]
                 .__setitem__("U", {"ref": "ZZ9.wall.U"}))
+        variant("flanking: 200 elements", lambda s: inp(s, 1).__setitem__(
+            "flanking", [dict(inp(s, 1)["flanking"][0], name=f"F{i}") for i in range(200)]))
         variant("flanking: so large psi is hugely negative", lambda s: inp(s, 0)["flanking"][1]
                 .__setitem__("length", "1000 m"))
     return cases

@@ -98,6 +98,47 @@ def test_steel_member_heating__critical_temperature_above_1200_degc_refused_with
         "       |                ^"]
 
 
+# --- long lists: refused with the list's location, in seconds ---------------------------------
+
+def test_thermal_bridge__thousands_of_flanking_elements_refused_with_location(tmp_path, capsys):
+    # 10 000 flanking elements took minutes (an input looked up by a scan per item) and then
+    # failed inside the working; a list input holds at most 1000 items (docs/limits.md).
+    many = "".join(f"        - {{name: F{i}, U: {{ref: FW1.wall.U}}, length: 1 m}}\n"
+                   for i in range(1001))
+    status, err = run_check(tmp_path, capsys, "TB1",
+                            "        - {name: FW-1 wall, U: {ref: FW1.wall.U}, length: 1 m}\n",
+                            many)
+    assert status == 2
+    assert err[0] == ("p/sheets/tb1.yaml:66:9: error: TB1.corner.inputs.flanking: 'flanking' "
+                      "has too many items (expected at most 1000, got 1002)")
+
+
+def test_cylindrical_layers__conductivity_curve_of_thousands_of_points_refused_with_location(
+        tmp_path, capsys):
+    points = ", ".join(f'["{i * 0.1:.1f} degC", "0.04 W/(m*K)"]' for i in range(1001))
+    status, err = run_check(tmp_path, capsys, "SM1", "material: mineral_wool_pipe,",
+                            f"conductivity_curve: [{points}],")
+    assert status == 2
+    assert err[0].startswith("p/sheets/sm1.yaml:22:68: error: SM1.main.inputs.layers[0]."
+                             "conductivity_curve: too many points (expected at most 1000, got "
+                             "1001)")
+
+
+def test_thermal_bridge__flanking_sum_too_long_to_print_refused_with_location(tmp_path, capsys):
+    # 200 flanking elements: ψ = L2D − (H_1 + … + H_200) is longer than an expression may be;
+    # it was an internal fault (exit 3), it is a refusal at the block.
+    many = "".join(f"        - {{name: F{i}, U: {{ref: FW1.wall.U}}, length: 1 m}}\n"
+                   for i in range(199))
+    status, err = run_check(tmp_path, capsys, "TB1",
+                            "        - {name: FW-1 wall, U: {ref: FW1.wall.U}, length: 1 m}\n",
+                            many)
+    assert status == 2
+    assert err[0] == (
+        "p/sheets/tb1.yaml:45:5: error: TB1.corner: too many items for the working to be "
+        "printed (expected an expression of at most 500 characters (split it into steps), got "
+        "1498 characters); hint: split the block, or give its lists fewer items")
+
+
 # --- the bounded fuzz -----------------------------------------------------------------------------
 
 def sample() -> list[Mutation]:

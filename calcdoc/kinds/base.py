@@ -52,7 +52,12 @@ __all__ = [
     "Record", "MaterialField", "FreeMapping", "ResultSpec", "Kind", "Inputs", "InputContext",
     "InputRecord", "BlockOutput", "Step", "Series", "ResolvedRef", "did_you_mean", "Value",
     "Phrase", "phrase", "FigureData", "InvalidInput", "StepMismatch", "convert_fields",
+    "MAX_ITEMS",
 ]
+
+# Items of one list input of a block (layers, regions, surfaces, flanking elements, months,
+# points of a conductivity curve): a wall has a dozen layers, a junction some tens of regions.
+MAX_ITEMS = 1000
 
 
 class _Required:
@@ -547,6 +552,10 @@ class Items(Field):
             ctx.error(node, path, f"'{self.name}' has too few items",
                       f"at least {self.min_items}", str(len(node.value)))
             raise _Invalid
+        if len(node.value) > MAX_ITEMS:  # refused before thousands of items are converted
+            ctx.error(node, path, f"'{self.name}' has too many items",
+                      f"at most {MAX_ITEMS}", str(len(node.value)))
+            raise _Invalid
         out, failed = [], False
         for i, item in enumerate(node.value):
             item_path = f"{path}[{i}]"
@@ -833,10 +842,17 @@ class BlockOutput:
 
     def input(self, path: str) -> Value:
         """Return the input at ``path`` (``layers[0].thickness``) as a :class:`Value`."""
-        for record in self.records:
-            if record.path == path:
-                return record.value()
-        raise KeyError(f"{self.block_key}: no input recorded at {path}")
+        # An index rather than a scan: a kind asks for every item of a list, and a scan per
+        # item made a list of thousands (flanking elements) take minutes.
+        if getattr(self, "_indexed", None) != len(self.records):
+            self._index: dict = {}
+            for record in self.records:
+                self._index.setdefault(record.path, record)
+            self._indexed = len(self.records)
+        record = self._index.get(path)
+        if record is None:
+            raise KeyError(f"{self.block_key}: no input recorded at {path}")
+        return record.value()
 
     # ---- steps
 
