@@ -70,6 +70,16 @@ def test_thermal_bridge__region_material_null_refused_with_location(tmp_path, ca
         "conductivity | material is needed (expected exactly one, got none)")
 
 
+def test_interstitial_condensation__material_as_a_list_refused_as_not_a_name(tmp_path, capsys):
+    # It was refused as "unknown material 'None'", a name the user never wrote.
+    status, err = run_check(tmp_path, capsys, "IC1", "material: gypsum_plasterboard}",
+                            "material: [gypsum_plasterboard]}")
+    assert status == 2
+    assert err[0] == (
+        "p/sheets/ic1.yaml:19:62: error: IC1.wall.inputs.layers[0].material: not a material "
+        "name (expected a material in the library or materials.yaml, got ['gypsum_plasterboard'])")
+
+
 # --- a pair of lengths with one element not a number ---------------------------------------------
 
 def test_thermal_bridge__pair_with_nan_length_refused_with_location(tmp_path, capsys):

@@ -602,7 +602,11 @@ class MaterialField(Field):
     def convert(self, node, ctx, path):
         name_node = node.value["material"] if _is_mapping_with(node, "material") else node
         name = name_node.value if name_node.is_scalar else None
-        if not isinstance(name, str) or name not in ctx.materials:
+        if not isinstance(name, str):  # a list, a mapping, a number: no name to look up
+            ctx.error(name_node, path, "not a material name",
+                      "a material in the library or materials.yaml", repr(plain(name_node)))
+            raise _Invalid
+        if name not in ctx.materials:
             ctx.error(name_node, path, f"unknown material '{name}'",
                       "a material in the library or materials.yaml", repr(plain(name_node)),
                       did_you_mean(str(name), ctx.materials) if isinstance(name, str) else None)
