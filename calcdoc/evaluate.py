@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 
 from calcdoc.errors import InputError, InputErrors, Location, MissingInput
+from calcdoc.expressions import ExpressionError
 from calcdoc.kinds import get_kind
 from calcdoc.data import phrase
 from calcdoc.kinds.base import (ABSOLUTE, BlockOutput, InputContext, InvalidInput, Quantity,
@@ -268,6 +269,13 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
         return None
     except InputError as err:
         errors.append(err)
+        return None
+    except ExpressionError as exc:
+        # A kind writes its working as expressions over its items: a sum over a list long
+        # enough (flanking elements, layers) passes the expression limits only as a refusal.
+        errors.append(InputError(spec.loc, spec.key, "too many items for the working to be "
+                                 "printed", f"an expression of {exc.expected}",
+                                 exc.got, "split the block, or give its lists fewer items"))
         return None
     checks = []
     for check in spec.checks:

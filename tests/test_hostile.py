@@ -16,7 +16,7 @@ import pytest
 from calcdoc import build as build_module
 from calcdoc.cli import main
 from calcdoc.kinds import registry
-from calcdoc.kinds.base import Items, Quantity, Record
+from calcdoc.kinds.base import MAX_ITEMS, Items, Quantity, Record
 from calcdoc.units import dimension_text
 from conftest import write_project
 
@@ -467,6 +467,7 @@ def test_limits_page_quotes_the_enforced_limits():
                    f"| {physics.MAX_CELLS:,} |".replace(",", " "),
                    f"| {int(physics.MAX_DURATION // 3600)} h |",
                    f"are sliced) | {condensation.MAX_SLICES} |",
+                   f"conductivity curve) | {MAX_ITEMS:,} |".replace(",", " "),
                    f"| {bridge2d.DEFAULT_MAX_CELLS:,} |".replace(",", " "),
                    f"| {archive.MAX_ARCHIVE_BYTES // (1024 * 1024)} MiB |",
                    f"| {archive.MAX_JSON_BYTES // (1024 * 1024)} MiB |",

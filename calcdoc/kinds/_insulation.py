@@ -23,8 +23,8 @@ from scipy.optimize import brentq
 
 from calcdoc.data import ABSOLUTE, DIFFERENCE, Value, phrase
 from calcdoc.errors import InputError
-from calcdoc.kinds.base import (Field, InputRecord, InvalidInput, MaterialField, Quantity,
-                                did_you_mean)
+from calcdoc.kinds.base import (MAX_ITEMS, Field, InputRecord, InvalidInput, MaterialField,
+                                Quantity, did_you_mean)
 from calcdoc.located import plain
 from calcdoc.physics import PhysicsRangeError
 from calcdoc.physics.insulation import (SIZING_BRACKET, ConductivityCurve,
@@ -94,6 +94,10 @@ class ConductivityCurveField(Field):
             ctx.error(node, path, "not a list of [temperature, conductivity] pairs",
                       '[["T1", "λ1"], ["T2", "λ2"], ...] with absolute temperatures, increasing',
                       repr(plain(node)))
+            raise InvalidInput
+        if len(node.value) > MAX_ITEMS:  # refused before thousands of points are parsed
+            ctx.error(node, path, "too many points", f"at most {MAX_ITEMS}",
+                      str(len(node.value)))
             raise InvalidInput
         temperature = Quantity("temperature", unit="K", temperature=ABSOLUTE)
         conductivity = Quantity("conductivity", unit="W/(m*K)")

@@ -52,7 +52,12 @@ __all__ = [
     "Record", "MaterialField", "FreeMapping", "ResultSpec", "Kind", "Inputs", "InputContext",
     "InputRecord", "BlockOutput", "Step", "Series", "ResolvedRef", "did_you_mean", "Value",
     "Phrase", "phrase", "FigureData", "InvalidInput", "StepMismatch", "convert_fields",
+    "MAX_ITEMS",
 ]
+
+# Items of one list input of a block (layers, regions, surfaces, flanking elements, months,
+# points of a conductivity curve): a wall has a dozen layers, a junction some tens of regions.
+MAX_ITEMS = 1000
 
 
 class _Required:
@@ -547,6 +552,10 @@ class Items(Field):
             ctx.error(node, path, f"'{self.name}' has too few items",
                       f"at least {self.min_items}", str(len(node.value)))
             raise _Invalid
+        if len(node.value) > MAX_ITEMS:  # refused before thousands of items are converted
+            ctx.error(node, path, f"'{self.name}' has too many items",
+                      f"at most {MAX_ITEMS}", str(len(node.value)))
+            raise _Invalid
         out, failed = [], False
         for i, item in enumerate(node.value):
             item_path = f"{path}[{i}]"
@@ -593,7 +602,11 @@ class MaterialField(Field):
     def convert(self, node, ctx, path):
         name_node = node.value["material"] if _is_mapping_with(node, "material") else node
         name = name_node.value if name_node.is_scalar else None
-        if not isinstance(name, str) or name not in ctx.materials:
+        if not isinstance(name, str):  # a list, a mapping, a number: no name to look up
+            ctx.error(name_node, path, "not a material name",
+                      "a material in the library or materials.yaml", repr(plain(name_node)))
+            raise _Invalid
+        if name not in ctx.materials:
             ctx.error(name_node, path, f"unknown material '{name}'",
                       "a material in the library or materials.yaml", repr(plain(name_node)),
                       did_you_mean(str(name), ctx.materials) if isinstance(name, str) else None)
@@ -687,14 +700,17 @@ def convert_fields(fields, node: Node, ctx: InputContext, path: str,
             ctx.error(node.key_locs[key], _join(path, key), f"unknown key '{key}'",
                       "one of " + ", ".join(names), repr(key), did_you_mean(key, names))
             failed = True
+    # A key written as null (`material:` with nothing after it) is absent, as it is for a
+    # field of its own; counted as present it would pass the group and leave no value at all.
+    given = {k for k, v in node.value.items() if v is not None and v.value is not None}
     for group in exactly_one:
-        present = [k for k in group if k in node.value]
+        present = [k for k in group if k in given]
         if len(present) != 1:
             ctx.error(node, path, "exactly one of " + " | ".join(group) + " is needed",
                       "exactly one", ", ".join(present) if present else "none")
             failed = True
     for group in at_most_one:
-        present = [k for k in group if k in node.value]
+        present = [k for k in group if k in given]
         if len(present) > 1:
             ctx.error(node, path, "at most one of " + " | ".join(group),
                       "at most one", ", ".join(present))
@@ -830,10 +846,17 @@ class BlockOutput:
 
     def input(self, path: str) -> Value:
         """Return the input at ``path`` (``layers[0].thickness``) as a :class:`Value`."""
-        for record in self.records:
-            if record.path == path:
-                return record.value()
-        raise KeyError(f"{self.block_key}: no input recorded at {path}")
+        # An index rather than a scan: a kind asks for every item of a list, and a scan per
+        # item made a list of thousands (flanking elements) take minutes.
+        if getattr(self, "_indexed", None) != len(self.records):
+            self._index: dict = {}
+            for record in self.records:
+                self._index.setdefault(record.path, record)
+            self._indexed = len(self.records)
+        record = self._index.get(path)
+        if record is None:
+            raise KeyError(f"{self.block_key}: no input recorded at {path}")
+        return record.value()
 
     # ---- steps
 

@@ -92,8 +92,9 @@ class LengthPair(Field):
         parts = [_NUMBER.match(t) for t in texts]
         bare = [m is not None and m.end() == len(t) and not isinstance(e.value, bool)
                 for m, t, e in zip(parts, texts, node.value)]
-        if bare[0] != bare[1]:
-            # one unit for the pair, written once: [0, 365 mm] is [0 mm, 365 mm]
+        if bare[0] != bare[1] and parts[bare.index(False)] is not None:
+            # one unit for the pair, written once: [0, 365 mm] is [0 mm, 365 mm]; where the
+            # other is no number at all ('nan mm'), each is parsed as written and refused
             unit = texts[bare.index(False)][parts[bare.index(False)].end():].strip()
             texts = [f"{t} {unit}" if b else t for t, b in zip(texts, bare)]
         length = Quantity(self.name, self.meaning, unit="m")
@@ -103,7 +104,7 @@ class LengthPair(Field):
             length._check_range(value, ctx, element, path, repr(element.value))
             values.append(value)
             units.append(unit)
-        numbers = [_NUMBER.match(t)[1] for t in texts]
+        numbers = [m[1] if (m := _NUMBER.match(t)) else t for t in texts]
         if units[0] == units[1]:
             # the unit once, as the pair was written: '−62.5 to 1165 mm'
             template = ("({a}, {b}) " if self.point else "{a} to {b} ") + units[0]

@@ -37,6 +37,7 @@ from calcdoc.physics.firecurves import (AMBIENT_TEMPERATURE, DEFAULT_DURATION, N
 from calcdoc.physics.sections import ENCASEMENTS
 from calcdoc.physics.sections import EXPOSURES as SECTION_EXPOSURES
 from calcdoc.physics.steel import (MINIMUM_UTILISATION, PROTECTED_MAX_TIME_STEP, STEEL_DENSITY,
+                                   STEEL_TEMPERATURE_RANGE,
                                    UNPROTECTED_MAX_TIME_STEP,
                                    critical_temperature_from_utilisation, net_heat_flux,
                                    protected_steel_heating, protected_temperature_increment,
@@ -1078,8 +1079,12 @@ STEEL_MEMBER_HEATING = Kind(
                  source="EN 1991-1-2:2002 §3.1(7)", greater_than=0.0, at_most=1.0),
         Quantity("convection_coefficient", "αc (default: the fire's own)", default=None,
                  unit="W/(m^2*K)", at_least=0.0),
+        # Above 1200 °C steel has no properties in EN 1993-1-2 (§3.4.1.2): a critical
+        # temperature there is never reached by the heating this kind computes, and its check
+        # would pass whatever the fire.
         Quantity("critical_temperature", "critical steel temperature θa,cr, with its source",
-                 default=None, unit="K", temperature=ABSOLUTE, greater_than=0.0),
+                 default=None, unit="K", temperature=ABSOLUTE, greater_than=0.0,
+                 at_most=STEEL_TEMPERATURE_RANGE[1], display="degC"),
         Quantity("utilisation", "degree of utilisation μ0 for eq. (4.22), only where "
                  "deformation and stability do not govern (EN 1993-1-2 §4.2.4)", default=None,
                  at_least=MINIMUM_UTILISATION, at_most=1.0),
