@@ -241,7 +241,11 @@ def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,
             raise UnitProblem("a temperature difference written as an absolute temperature",
                               "a difference in K, delta_degC or delta_degF", repr(text),
                               hint=f"write '{match.group(1)} K' or '{match.group(1)} delta_{unit_text}'")
-    unit = parse_unit(unit_text)
+    try:
+        unit = parse_unit(unit_text)
+    except UnitProblem as problem:
+        problem.hint = _letter_in_number_hint(str(text)) or problem.hint
+        raise
     if not same_dimension(unit, target):
         raise UnitProblem("wrong dimension", dimension_text(target),
                           f"{dimension_text(unit)} in {str(text)!r}")
@@ -253,6 +257,24 @@ def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,
     if not math.isfinite(value):
         raise UnitProblem("not a finite number", "a finite value", repr(text))
     return value, unit_text
+
+
+_LOOKALIKE_DIGITS = str.maketrans({"O": "0", "o": "0", "l": "1", "I": "1"})
+
+
+def _letter_in_number_hint(text: str) -> str | None:
+    """Return a hint when a letter typed for a digit ('15O mm', '1O0 W') split the number, so
+    that the rest was read as an unknown unit; None when that is not what happened."""
+    match = re.match(r"^\s*([-+]?[\d.]*\d[\d.OolI]*)(\s*)(.*?)\s*$", text)
+    if match is None or match.group(1).translate(_LOOKALIKE_DIGITS) == match.group(1):
+        return None
+    number = match.group(1).translate(_LOOKALIKE_DIGITS)
+    try:
+        float(number)
+        parse_unit(match.group(3))
+    except (ValueError, UnitProblem):
+        return None
+    return f"a letter in the number? did you mean '{number} {match.group(3)}'?"
 
 
 def split_quantity(text: str) -> tuple[float, str]:

@@ -40,6 +40,22 @@ def test_difference_written_in_degC__is_refused_with_a_hint():
     assert info.value.hint == "write '140 K' or '140 delta_degC'"
 
 
+@pytest.mark.parametrize("text, meant", [("15O mm", "150 mm"), ("1O0 W", "100 W"),
+                                         ("0.O35 W/(m*K)", "0.035 W/(m*K)")])
+def test_letter_o_typed_for_a_zero__unknown_unit_with_the_number_meant(text, meant):
+    # A letter O for a zero splits the number; the rest reads as an unknown unit.
+    with pytest.raises(UnitProblem) as info:
+        parse_quantity_text(text, "W" if "W" in text else "m")
+    assert info.value.what.startswith("unknown unit")
+    assert info.value.hint == f"a letter in the number? did you mean '{meant}'?"
+
+
+def test_unknown_unit_without_a_lookalike_letter__no_such_hint():
+    with pytest.raises(UnitProblem) as info:
+        parse_quantity_text("12 furlongs_per_fortnight_x", "m")
+    assert "letter in the number" not in (info.value.hint or "")
+
+
 def test_difference_in_kelvin_and_delta_degF():
     assert parse_quantity_text("140 K", "K", "difference")[0] == 140
     # 1 °F interval = 5/9 K (NIST SP 811 B.9)
