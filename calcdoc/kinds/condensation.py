@@ -21,14 +21,13 @@ from scipy.constants import zero_Celsius
 
 from calcdoc.data import Axis, Band, FigureData, Line, Point, Value, library_value, phrase
 from calcdoc.errors import InputError
-from calcdoc.kinds.base import (ABSOLUTE, REQUIRED, Choice, InvalidInput, Items, Kind, Quantity,
+from calcdoc.kinds.base import (ABSOLUTE, REQUIRED, InvalidInput, Items, Kind, Quantity,
                                 ResultSpec, Text, did_you_mean)
 from calcdoc.physics import PhysicsRangeError
 from calcdoc.kinds.conduction import (SERIES_SOURCE, THICKNESS, ConductingMaterial,
-                                      SurfaceResistance, layer_conductivity,
+                                      layer_conductivity, plane_surface_inputs,
                                       surface_resistance_steps)
-from calcdoc.physics.conduction import (SURFACE_RESISTANCE_SOURCE, layer_resistance,
-                                        saturation_vapour_pressure)
+from calcdoc.physics.conduction import layer_resistance, saturation_vapour_pressure
 from calcdoc.physics.glaser import (MONTH_NAMES, VAPOUR_PERMEABILITY_OF_AIR,
                                     equivalent_air_thickness, interstitial_condensation,
                                     month_seconds, vapour_profile)
@@ -821,14 +820,7 @@ INTERSTITIAL_CONDENSATION = Kind(
                      exactly_one=(("conductivity", "resistance", "material"),),
                      at_most_one=(("vapour_resistance_factor", "equivalent_air_thickness"),),
                      min_items=1),
-        Choice("heat_flow", "direction of heat flow (sets R_si)", default="horizontal",
-               source="ISO 6946:2017 Table 7", options=("horizontal", "upward", "downward")),
-        SurfaceResistance("inside_surface_resistance", "inside surface resistance R_si",
-                          default="ISO 6946:2017 Table 7", source=SURFACE_RESISTANCE_SOURCE,
-                          unit="m^2*K/W", at_least=0.0, side="inside"),
-        SurfaceResistance("outside_surface_resistance", "outside surface resistance R_se",
-                          default="ISO 6946:2017 Table 7", source=SURFACE_RESISTANCE_SOURCE,
-                          unit="m^2*K/W", at_least=0.0, side="outside"),
+        *plane_surface_inputs("inside surface resistance R_si"),
         ClimateMonths("climate", "monthly mean climate, January to December",
                       fields=CLIMATE_FIELDS, min_items=12),
     ),

@@ -264,6 +264,22 @@ def _wall_compute(inp, out):
     out.figure(_wall_figure(out, inp, layers, temperatures, surface))
 
 
+def plane_surface_inputs(inside_meaning: str) -> tuple:
+    """Return the declarations of a plane element's surfaces: heat-flow direction and the inside
+    and outside surface resistances (ISO 6946 Table 7 unless given), shared by the kinds that
+    take a plane build-up (layered_wall, interstitial_condensation)."""
+    return (
+        Choice("heat_flow", "direction of heat flow (sets R_si)", default="horizontal",
+               source="ISO 6946:2017 Table 7", options=("horizontal", "upward", "downward")),
+        SurfaceResistance("inside_surface_resistance", inside_meaning,
+                          default="ISO 6946:2017 Table 7", source=SURFACE_RESISTANCE_SOURCE,
+                          unit="m^2*K/W", at_least=0.0, side="inside"),
+        SurfaceResistance("outside_surface_resistance", "outside surface resistance R_se",
+                          default="ISO 6946:2017 Table 7", source=SURFACE_RESISTANCE_SOURCE,
+                          unit="m^2*K/W", at_least=0.0, side="outside"),
+    )
+
+
 def surface_resistance_steps(inp, out) -> tuple[Value, Value]:
     """State where each surface resistance comes from; return them as operands (inputs as
     written or table values in full)."""
@@ -988,14 +1004,7 @@ LAYERED_WALL = Kind(
                  temperature=ABSOLUTE, greater_than=0.0),
         Quantity("outside_temperature", "outside air temperature", unit="K",
                  temperature=ABSOLUTE, greater_than=0.0),
-        Choice("heat_flow", "direction of heat flow (sets R_si)", default="horizontal",
-               source="ISO 6946:2017 Table 7", options=("horizontal", "upward", "downward")),
-        SurfaceResistance("inside_surface_resistance", "inside surface resistance R_si for U",
-                          default="ISO 6946:2017 Table 7", source=SURFACE_RESISTANCE_SOURCE,
-                          unit="m^2*K/W", at_least=0.0, side="inside"),
-        SurfaceResistance("outside_surface_resistance", "outside surface resistance R_se",
-                          default="ISO 6946:2017 Table 7", source=SURFACE_RESISTANCE_SOURCE,
-                          unit="m^2*K/W", at_least=0.0, side="outside"),
+        *plane_surface_inputs("inside surface resistance R_si for U"),
         Quantity("area", "area of the element", default=None, unit="m^2", greater_than=0.0),
         Quantity("inside_relative_humidity", "relative humidity of the inside air",
                  default=None, unit="1", percent=True, greater_than=0.0, at_most=1.0),
