@@ -216,7 +216,7 @@ def cmd_materials(args) -> int:
     from calcdoc.data import Value
     from calcdoc.kinds.base import did_you_mean
     from calcdoc.provenance import MATERIAL_UNITS
-    from calcdoc.render.printed import print_value
+    from calcdoc.render.printed import print_curve, print_value
     materials = _library(args.project)
     if args.name is not None and args.name not in materials:
         hint = did_you_mean(args.name, materials)
@@ -258,10 +258,8 @@ def cmd_materials(args) -> int:
             print(f"  {prop.replace('_', ' ')}: {shown(m, prop)}")
             print(f"      source: {cited.get('source', m.get('source', ''))}{flag}")
     if "conductivity_curve" in m:
-        points = ", ".join(
-            f"{print_value(Value(t, 'K', temperature='absolute', given=True), 3).text}: "
-            f"{print_value(Value(k, 'W/(m*K)', given=True), 3).text}"
-            for t, k in m["conductivity_curve"])
+        points = ", ".join(f"{theta.text}: {k.text}"
+                           for theta, k in print_curve(m["conductivity_curve"]))
         print(f"  conductivity against temperature: {points}")
     if m.get("law"):
         print(f"  temperature-dependent law: {m['law']}")

@@ -31,7 +31,7 @@ from calcdoc.render.math import fits_width, formula_width_pt, mathml, pdf_math, 
 from calcdoc.render.memo import MEMO, data_digest
 from calcdoc.render.plots import Drawn, draw
 from calcdoc.render.numbers import pretty_unit, pretty_written
-from calcdoc.render.printed import PrintedStep, fill, print_check, print_value
+from calcdoc.render.printed import PrintedStep, fill, print_check, print_curve, print_value
 from calcdoc.provenance import values_to_confirm
 from calcdoc.references import PROJECT, PUBLISHED, split
 from calcdoc.render.status import signoff_state
@@ -608,8 +608,7 @@ def _curve_text(curve) -> str:
     unit once (the pipe kinds average it over each layer; the constant λ is its declared value)."""
     if not curve:
         return ""
-    points = [f"{print_value(Value(t, 'K', temperature='absolute', given=True), 3).text} "
-              f"{print_value(Value(k, 'W/(m*K)', given=True), 3).number}" for t, k in curve]
+    points = [f"{theta.text} {k.number}" for theta, k in print_curve(curve)]
     return "λ(θ): " + "; ".join(points) + " W/(m·K)"
 
 

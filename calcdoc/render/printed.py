@@ -103,6 +103,13 @@ def _given_number(value: float) -> str:
 _SUPER = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
 
 
+def print_curve(curve) -> list[tuple[Printed, Printed]]:
+    """Return a conductivity curve's points as printed: (temperature, conductivity) each in full,
+    from ``[T in K, λ in W/(m·K)]`` pairs (the materials library's form)."""
+    return [(print_value(Value(t, "K", temperature=ABSOLUTE, given=True), 3),
+             print_value(Value(k, "W/(m*K)", given=True), 3)) for t, k in curve]
+
+
 def print_value(value: Value, sig: int, system: str = "SI", kelvin: bool = False,
                 index: int | None = None) -> Printed:
     """Return a value as printed: as written (an input), in full (a given number) or to ``sig``
