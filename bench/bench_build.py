@@ -62,16 +62,21 @@ print(json.dumps({"seconds": time.perf_counter() - t, "timings": timings, "pages
 """
 
 
+def child(script: str, argv: list[str], what: str, cwd: Path | None = None) -> dict:
+    """Run ``script`` in a fresh Python process; return the JSON of its last line of output."""
+    env = {**os.environ, "PYTHONPATH": str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", "")}
+    done = subprocess.run([sys.executable, "-c", script, *argv], capture_output=True, text=True,
+                          env=env, cwd=str(cwd) if cwd else None)
+    if done.returncode != 0:
+        raise SystemExit(f"{what} failed:\n{done.stderr[-3000:]}")
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
 def run(what: str, project: Path, out: Path | None = None, pdf: bool = False,
         cache: bool = True) -> dict:
     args = {"what": what, "project": str(project), "out": str(out) if out else None,
             "pdf": pdf, "cache": cache}
-    env = {**os.environ, "PYTHONPATH": str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", "")}
-    done = subprocess.run([sys.executable, "-c", CHILD, json.dumps(args)], capture_output=True,
-                          text=True, env=env, cwd=str(project.parent))
-    if done.returncode != 0:
-        raise SystemExit(f"{what} of {project} failed:\n{done.stderr[-3000:]}")
-    return json.loads(done.stdout.strip().splitlines()[-1])
+    return child(CHILD, [json.dumps(args)], f"{what} of {project}", cwd=project.parent)
 
 
 def demo_sheets() -> list[tuple[str, str]]:
@@ -130,11 +135,8 @@ print(json.dumps({"seconds": time.perf_counter() - t}))
 
 
 def weasyprint_alone(out: Path, target: Path) -> float:
-    done = subprocess.run([sys.executable, "-c", WEASYPRINT_ALONE, str(out), str(target)],
-                          capture_output=True, text=True)
-    if done.returncode != 0:
-        raise SystemExit(f"WeasyPrint alone on {out}/package.html failed:\n{done.stderr[-3000:]}")
-    return json.loads(done.stdout.strip().splitlines()[-1])["seconds"]
+    return child(WEASYPRINT_ALONE, [str(out), str(target)],
+                 f"WeasyPrint alone on {out}/package.html")["seconds"]
 
 
 def line(label: str, seconds: float, extra: str = "") -> None:
