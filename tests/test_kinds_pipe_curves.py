@@ -17,7 +17,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 import yaml
-from scipy.integrate import solve_bvp, solve_ivp
+from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
 
 from calcdoc.cli import main
@@ -26,6 +26,7 @@ from calcdoc.project import load_project
 from calcdoc.provenance import values_to_confirm
 from calcdoc.render.printed import fill
 from conftest import write_project
+from test_physics_insulation import radial_bvp_reference
 from test_redo import redo
 
 C = 273.15  # K at 0 degC (definition of the Celsius scale)
@@ -120,24 +121,10 @@ def test_piecewise_curve__mean_over_the_layer_is_the_hand_integral(evaluate):
 
 
 def test_curve_layer__heat_flow_matches_solve_bvp_of_the_radial_equation(evaluate):
-    # d/dr(r λ(T) dT/dr) = 0 as y = (T, q'): dT/dr = -q'/(2π r λ(T)), dq'/dr = 0; T(r0) = T_i,
-    # q' = π D_1 h_o (T(r1) - T_a); scipy.integrate.solve_bvp, no mean conductivity anywhere.
-    D0, thickness, h_o, T_i, T_a = 0.1143, 0.08, 8.0, 623.15, 293.15
-    r0, r1 = D0 / 2.0, D0 / 2.0 + thickness
-
-    def lam(T):
-        return np.interp(T, FIBROUS_T, FIBROUS_K)
-
-    def ode(r, y):
-        return np.vstack((-y[1] / (2.0 * np.pi * r * lam(y[0])), np.zeros_like(r)))
-
-    def bc(ya, yb):
-        return np.array([ya[0] - T_i, yb[1] - np.pi * 2.0 * r1 * h_o * (yb[0] - T_a)])
-
-    r = np.linspace(r0, r1, 200)
-    guess = np.vstack((np.linspace(T_i, T_a + 10.0, r.size), np.full(r.size, 100.0)))
-    numerical = solve_bvp(ode, bc, r, guess, tol=1e-8, max_nodes=100000)
-    assert numerical.success
+    # The radial equation solved by scipy.integrate.solve_bvp, no mean conductivity anywhere
+    # (the reference of tests/test_physics_insulation.py).
+    q, theta_s = radial_bvp_reference(lambda T: np.interp(T, FIBROUS_T, FIBROUS_K),
+                                      0.1143, 0.08, 623.15, 293.15, 8.0)
     got = results(evaluate(pipe_sheet(f"""\
       inner_diameter: 114.3 mm
       layers:
@@ -146,8 +133,8 @@ def test_curve_layer__heat_flow_matches_solve_bvp_of_the_radial_equation(evaluat
       ambient_temperature: 293.15 K
       outside_coefficient: 8 W/(m^2*K)
 """)))
-    assert got["q_per_length"] == pytest.approx(float(numerical.y[1, 0]), rel=1e-6)  # solve_bvp
-    assert got["theta_surface"] == pytest.approx(float(numerical.y[0, -1]), abs=1e-4)  # solve_bvp
+    assert got["q_per_length"] == pytest.approx(q, rel=1e-6)  # solve_bvp
+    assert got["theta_surface"] == pytest.approx(theta_s, abs=1e-4)  # solve_bvp
 
 
 PW1_CHW = """\

@@ -115,11 +115,11 @@ def _shooting_solution(diameters, lams, T_i, T_a, surface_loss, h_i=None):
     return q, _shoot(q, diameters, lams, T_i, h_i)
 
 
-def test_single_layer_curve__matches_solve_bvp_of_radial_equation():
-    # d/dr(r λ(T) dT/dr) = 0 as y = (T, q'): dT/dr = -q'/(2π r λ(T)), dq'/dr = 0;
-    # T(r0) = T_i, q' = π D_1 h_o (T(r1) - T_a). Solved by scipy.integrate.solve_bvp.
-    D0, thickness, h_o, T_i, T_a = 0.1143, 0.08, 8.0, 623.15, 293.15
-    lam = _lam(FIBROUS)
+def radial_bvp_reference(lam, D0, thickness, T_i, T_a, h_o) -> tuple[float, float]:
+    """(q' [W/m], outer surface temperature [K]) of one layer of conductivity ``lam(T)`` by
+    scipy.integrate.solve_bvp, with no mean conductivity anywhere: d/dr(r λ(T) dT/dr) = 0 as
+    y = (T, q'): dT/dr = -q'/(2π r λ(T)), dq'/dr = 0; T(r0) = T_i, q' = π D_1 h_o (T(r1) - T_a).
+    Shared with tests/test_kinds_pipe_curves.py."""
     r0, r1 = D0 / 2.0, D0 / 2.0 + thickness
 
     def ode(r, y):
@@ -132,9 +132,15 @@ def test_single_layer_curve__matches_solve_bvp_of_radial_equation():
     guess = np.vstack((np.linspace(T_i, T_a + 10.0, r.size), np.full(r.size, 100.0)))
     numerical = solve_bvp(ode, bc, r, guess, tol=1e-8, max_nodes=100000)
     assert numerical.success
+    return float(numerical.y[1, 0]), float(numerical.y[0, -1])
+
+
+def test_single_layer_curve__matches_solve_bvp_of_radial_equation():
+    D0, thickness, h_o, T_i, T_a = 0.1143, 0.08, 8.0, 623.15, 293.15
+    q, theta_s = radial_bvp_reference(_lam(FIBROUS), D0, thickness, T_i, T_a, h_o)
     result = cylindrical_layers_with_curves(D0, [thickness], [FIBROUS], T_i, T_a, h_o)
-    assert result.flow.q_per_length == pytest.approx(float(numerical.y[1, 0]), rel=1e-6)
-    assert result.flow.theta_surface == pytest.approx(float(numerical.y[0, -1]), abs=1e-4)
+    assert result.flow.q_per_length == pytest.approx(q, rel=1e-6)  # solve_bvp
+    assert result.flow.theta_surface == pytest.approx(theta_s, abs=1e-4)  # solve_bvp
 
 
 def test_two_curved_layers_with_films__match_shooting_solution():
