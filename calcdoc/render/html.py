@@ -15,6 +15,7 @@ from __future__ import annotations
 import ast
 import base64
 import dataclasses
+import functools
 import re
 from pathlib import Path
 
@@ -829,8 +830,10 @@ def _mark_changes(blocks: list[dict], changed: set[str], revision: str) -> None:
         b["mark"] = revision if b["key"] in changed else ""
 
 
+@functools.cache
 def environment() -> jinja2.Environment:
-    """Return the template environment: autoescaped, strict about undefined names."""
+    """Return the template environment: autoescaped, strict about undefined names (one per
+    process, so that each template is compiled once)."""
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(TEMPLATES)),
                              autoescape=jinja2.select_autoescape(["html", "xml"],
                                                                  default_for_string=True),
