@@ -503,7 +503,7 @@ def load_section_catalogue(path: str | Path = CATALOGUE_PATH) -> dict[str, Rolle
     1. The ``source`` of each family in the catalogue.
     """
     with open(path, encoding="utf-8") as handle:
-        tree = yaml.safe_load(handle)
+        tree = yaml.load(handle, Loader=getattr(yaml, "CSafeLoader", yaml.SafeLoader))
     catalogue: dict[str, RolledSection] = {}
     for family, entry in tree.items():
         source = str(entry["source"])
