@@ -15,7 +15,7 @@ Generated projects live in a temporary folder and are removed. No targets are en
 tests (a shared machine is noisy): the ratios are the result. Run:
 
     .venv/bin/python bench/bench_build.py [--sizes 50,100,200] [--full-sizes 50,100,200]
-                                          [--huge] [--skip-demo]
+                                          [--huge] [--skip-demo] [--jobs N]
 
 ``--huge`` adds a 1000-sheet HTML-only build.
 """
@@ -37,6 +37,7 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "projects" / "cold-store"
+JOBS = 1  # processes typesetting the PDF's parts (--jobs; default: the cores available)
 
 # One build in a process of its own; prints JSON: seconds, stage timings, peak memory.
 CHILD = r"""
@@ -51,14 +52,18 @@ if args["what"] == "check":
     timings = {}
 else:
     from calcdoc.build import build
-    report = build(args["project"], args["out"], pdf=args["pdf"], cache=args["cache"])
+    report = build(args["project"], args["out"], pdf=args["pdf"], cache=args["cache"],
+                   jobs=args["jobs"])
     timings = report.timings
 pages = 0
 if args.get("pdf"):
     from pypdf import PdfReader
     pages = len(PdfReader(args["out"] + "/package.pdf").pages)
+# the largest process: this one, or a worker typesetting a part of the PDF
+peak = max(resource.getrusage(who).ru_maxrss for who in (resource.RUSAGE_SELF,
+                                                         resource.RUSAGE_CHILDREN))
 print(json.dumps({"seconds": time.perf_counter() - t, "timings": timings, "pages": pages,
-                  "peak_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024}))
+                  "peak_mb": peak / 1024}))
 """
 
 
@@ -75,7 +80,7 @@ def child(script: str, argv: list[str], what: str, cwd: Path | None = None) -> d
 def run(what: str, project: Path, out: Path | None = None, pdf: bool = False,
         cache: bool = True) -> dict:
     args = {"what": what, "project": str(project), "out": str(out) if out else None,
-            "pdf": pdf, "cache": cache}
+            "pdf": pdf, "cache": cache, "jobs": JOBS}
     return child(CHILD, [json.dumps(args)], f"{what} of {project}", cwd=project.parent)
 
 
@@ -256,11 +261,17 @@ def main() -> None:
                         help="sheet counts of the full builds (default 50,100,200; '' none)")
     parser.add_argument("--huge", action="store_true", help="add a 1000-sheet HTML build")
     parser.add_argument("--skip-demo", action="store_true")
+    parser.add_argument("--jobs", type=int, default=len(os.sched_getaffinity(0)),
+                        help="processes typesetting the PDF's parts, as `calcdoc build --jobs` "
+                             "(default: the cores available, as calcdoc build)")
     args = parser.parse_args()
+    global JOBS
+    JOBS = args.jobs
     sizes = [int(s) for s in args.sizes.split(",") if s] + ([1000] if args.huge else [])
     full_sizes = [int(s) for s in args.full_sizes.split(",") if s]
     print(f"machine: {platform.machine()}, {os.cpu_count()} cores, Python "
-          f"{platform.python_version()}; load average {os.getloadavg()[0]:.1f} "
+          f"{platform.python_version()}; PDF typeset on {JOBS} processes; load average "
+          f"{os.getloadavg()[0]:.1f} "
           f"(a shared machine: compare ratios, not seconds)")
     started = time.perf_counter()
     with tempfile.TemporaryDirectory(prefix="calcdoc-bench-") as folder:

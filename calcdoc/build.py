@@ -31,6 +31,7 @@ from calcdoc.render import status
 from calcdoc.render.html import (Drawings, package_view, render_package_html,
                                  render_site)
 from calcdoc.render.memo import MEMO
+from calcdoc.render.parts import plan_parts
 from calcdoc.render.printed import print_check
 
 __all__ = ["build", "final_refusals", "MARKER", "BuildReport", "check_output_folder", "swap_in",
@@ -75,7 +76,8 @@ def check_output_folder(out_dir: Path) -> None:
 
 def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool = True,
           final: bool = False, previous: str | Path | None = None,
-          sheets: list[str] | None = None, cache: bool = True) -> BuildReport:
+          sheets: list[str] | None = None, cache: bool = True,
+          jobs: int = 1) -> BuildReport:
     """Build the package; raise InputErrors (bad input) or FinalRefused (--final refused).
 
     ``previous`` is the build (folder or PDF) of the previous issued revision: every input,
@@ -85,7 +87,9 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     fraction of the time (default output folder build/<project>-<SHEET>/). ``cache`` keeps
     what was typeset and drawn for each sheet, and the PDF, in ``<out>.cache/`` beside the
     output folder (:mod:`calcdoc.cache`), so that a rebuild typesets only what changed;
-    ``cache=False`` neither reads nor writes it."""
+    ``cache=False`` neither reads nor writes it. ``jobs`` > 1 typesets the PDF's parts (cover
+    and contents, each sheet, the appendices) on that many processes and joins them
+    (:mod:`calcdoc.render.parts`)."""
     timings: dict[str, float] = {}
     t0 = time.perf_counter()
     project_dir = Path(project_dir)
@@ -142,22 +146,30 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         if pdf:
             t = time.perf_counter()
             current().show("PDF: typesetting the package", force=True)
-            from calcdoc.render.pdf import write_pdf  # WeasyPrint loads only when a PDF is made
+            # WeasyPrint loads only when a PDF is made
+            from calcdoc.render.pdf import in_parts, write_pdf
             # the print document beside the PDF: what WeasyPrint renders, with the site's
             # stylesheet (assets/style.css), for a reviewer or a benchmark to render again
-            html = render_package_html(package_view(package, "pdf", drawings, changes))
+            print_view = package_view(package, "pdf", drawings, changes)
+            html = render_package_html(print_view)
             (tmp / "package.html").write_text(html, encoding="utf-8")
             attachments = sorted(inputs.items()) + [("results.json", results_text.encode())]
+            parts = plan_parts(print_view)
             pdf_key = cached = None
             if store is not None:
                 pdf_key = store.pdf_key(html, (tmp / "assets" / "style.css").read_bytes(),
-                                        attachments, project.revision.date, results_text)
+                                        attachments, project.revision.date, results_text,
+                                        in_parts(jobs, parts))
                 cached = store.load_pdf(pdf_key)
             if cached is not None:
                 (tmp / "package.pdf").write_bytes(cached)
+                store.keep("parts")
             else:
                 write_pdf(html, tmp, tmp / "package.pdf", attachments, project.revision.date,
-                          digest_seed=results_text)
+                          digest_seed=results_text, jobs=jobs,
+                          render_part=lambda part, page_of: render_package_html(
+                              print_view, part, page_of),
+                          parts=parts, store=store)
                 if store is not None:
                     store.store_pdf(pdf_key, (tmp / "package.pdf").read_bytes())
             timings["pdf"] = time.perf_counter() - t

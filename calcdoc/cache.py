@@ -6,6 +6,8 @@ whole by each build)::
 
     sheets/<key>.json   the answers (formulas typeset, figures drawn) one sheet's view used
     pdf/<key>.pdf       a PDF, with a one-line JSON header before its bytes
+    parts/<key>.pdf     one part of the PDF typeset alone (calcdoc/render/parts.py) ...
+    parts/<key>.json    ... and what its pages hold: page count, anchors, links, outline
 
 A sheet's key is the SHA-256 of the sheet's file, its resolved inputs (values from other
 sheets and from materials included), the project's number settings and the *salt*: calcdoc's
@@ -72,6 +74,7 @@ class BuildCache:
         self.folder = Path(folder)
         self.salt = salt()
         self.used: set[Path] = set()
+        self.kept: set[str] = set()
 
     # ------------------------------------------------------------------------------ keys
 
@@ -96,12 +99,19 @@ class BuildCache:
         return digest or data_digest(*parts)
 
     def pdf_key(self, html: str, css: bytes, attachments: list[tuple[str, bytes]],
-                revision_date: str, digest_seed: str) -> str:
+                revision_date: str, digest_seed: str, in_parts: bool = False) -> str:
         h = hashlib.sha256(self.salt.encode())
-        for part in (html.encode(), css, revision_date.encode(), digest_seed.encode()):
+        for part in (html.encode(), css, revision_date.encode(), digest_seed.encode(),
+                     b"parts" if in_parts else b"one document"):
             h.update(_sha(part).encode())
         for name, data in attachments:
             h.update(_sha(name.encode()).encode() + _sha(data).encode())
+        return h.hexdigest()
+
+    def part_key(self, html: str, css: bytes) -> str:
+        """The key of one part of the PDF typeset alone: its HTML and the stylesheet."""
+        h = hashlib.sha256(self.salt.encode())
+        h.update(_sha(html.encode()).encode() + _sha(css).encode())
         return h.hexdigest()
 
     # ------------------------------------------------------------------------------ entries
@@ -164,9 +174,32 @@ class BuildCache:
     def store_pdf(self, key: str, data: bytes) -> None:
         self._write("pdf", key, ".pdf", data)
 
+    def load_part(self, key: str) -> tuple[dict, bytes] | None:
+        """Return a part's layout (JSON data; the caller checks its shape) and its PDF."""
+        layout, pdf = self._read("parts", key, ".json"), self._read("parts", key, ".pdf")
+        if layout is None or pdf is None:
+            return None
+        try:
+            data = json.loads(layout)
+        except ValueError:
+            return None
+        return (data, pdf) if isinstance(data, dict) else None
+
+    def store_part(self, key: str, layout: dict, pdf: bytes) -> None:
+        self._write("parts", key, ".pdf", pdf)
+        self._write("parts", key, ".json",
+                    json.dumps(layout, ensure_ascii=False, sort_keys=True).encode("utf-8"))
+
+    def keep(self, kind: str) -> None:
+        """Keep every entry of ``kind`` at :meth:`prune` (the whole PDF came from the cache:
+        the parts it was joined from stay for the next build that changes one)."""
+        self.kept.add(kind)
+
     def prune(self) -> None:
         """Remove the entries this build did not use: the cache holds one build's worth."""
-        for kind in ("sheets", "pdf"):
+        for kind in ("sheets", "pdf", "parts"):
+            if kind in self.kept:
+                continue
             folder = self.folder / kind
             if not folder.is_dir():
                 continue

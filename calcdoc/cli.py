@@ -42,7 +42,8 @@ def cmd_build(args) -> int:
     from calcdoc.progress import reporter
     with reporter():  # one updating line on stderr when it is a terminal
         report = build(args.project, args.out, pdf=not args.no_pdf, final=args.final,
-                       previous=args.previous, sheets=args.sheet, cache=not args.no_cache)
+                       previous=args.previous, sheets=args.sheet, cache=not args.no_cache,
+                       jobs=args.jobs if args.jobs is not None else _available_cores())
     failed = [c for s in report.package.sheets for c in s.checks if not c.passed]
     times = ", ".join(f"{k} {v:.2f} s" for k, v in report.timings.items())
     print(f"built {report.out_dir} ({len(report.files)} files; {times})")
@@ -402,6 +403,10 @@ def parser() -> argparse.ArgumentParser:
     b.add_argument("--no-cache", action="store_true",
                    help="neither read nor write the build cache (<out>.cache beside the "
                         "output folder): typeset and draw everything afresh")
+    b.add_argument("--jobs", type=_whole_number, metavar="N",
+                   help="typeset the PDF's parts (cover and contents, each sheet, the "
+                        "appendices) on N processes and join them (default: the cores "
+                        "available; 1 typesets it as one document)")
     b.add_argument("--sheet", action="append", metavar="ID",
                    help="build only this sheet (repeat for more), with what it refers to")
     b.add_argument("--previous", metavar="BUILD",

@@ -43,11 +43,15 @@ NS = {"rdf": "http://www.w3.org/1999/02/22-rdf-syntax-ns#",
       "xmp": "http://ns.adobe.com/xap/1.0/"}
 
 
-@pytest.fixture(scope="module")
-def built(tmp_path_factory):
+@pytest.fixture(scope="module", params=["1", "2"], ids=["one document", "in parts"])
+def built(request, tmp_path_factory):
+    """The package typeset as one document (--jobs 1) and in parts joined (--jobs 2): the
+    same clauses hold for both."""
     folder = tmp_path_factory.mktemp("pdfa")
-    root = write_project(folder / "proj", {"f1": SHEET})
-    assert main(["build", str(root), "--out", str(folder / "out")]) == 0
+    root = write_project(folder / "proj", {"f1": SHEET, "f2": SHEET.replace("F1", "F2")})
+    assert main(["build", str(root), "--out", str(folder / "out"),
+                 "--jobs", request.param]) == 0
+    folder.joinpath("jobs").write_text(request.param)
     return folder
 
 
@@ -146,7 +150,7 @@ def test_attachments__each_with_its_relationship_and_listed_once_in_af(pdf):
     catalog = reader_of(pdf).trailer["/Root"]
     tree = catalog["/Names"]["/EmbeddedFiles"].get_object()["/Names"]
     specs = {tree[i]: tree[i + 1] for i in range(0, len(tree), 2)}
-    assert set(specs) == {"project.yaml", "sheets/f1.yaml", "results.json"}
+    assert set(specs) == {"project.yaml", "sheets/f1.yaml", "sheets/f2.yaml", "results.json"}
     # §6.8: every embedded file is associated with the document (the catalog's /AF) ...
     listed = [ref.idnum for ref in catalog["/AF"]]
     assert sorted(listed) == sorted(ref.idnum for ref in specs.values())  # each once
@@ -203,7 +207,8 @@ def test_annotations__printed_and_never_hidden(pdf):
 
 def test_rebuild__byte_identical_pdf_with_a_fixed_identifier(built, tmp_path):
     first = (built / "out" / "package.pdf").read_bytes()
-    assert main(["build", str(built / "proj"), "--out", str(tmp_path / "again")]) == 0
+    assert main(["build", str(built / "proj"), "--out", str(tmp_path / "again"),
+                 "--jobs", (built / "jobs").read_text()]) == 0
     assert (tmp_path / "again" / "package.pdf").read_bytes() == first
     identifier = reader_of(first).trailer["/ID"]  # §6.1.3: the file identifier is present
     assert len(identifier) == 2 and all(len(part.original_bytes) >= 16 for part in identifier)

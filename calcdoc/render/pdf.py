@@ -23,7 +23,7 @@ from weasyprint.urls import FatalURLFetchingError, URLFetcher
 
 from calcdoc.progress import weasyprint_pages
 
-__all__ = ["write_pdf", "ConfinedFetcher", "ResourceRefused"]
+__all__ = ["write_pdf", "in_parts", "ConfinedFetcher", "ResourceRefused"]
 
 LOGGER = logging.getLogger("calcdoc.pdf")
 
@@ -60,26 +60,55 @@ class ConfinedFetcher(URLFetcher):
 
 
 def write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[str, bytes]],
-              revision_date: str, digest_seed: str) -> None:
+              revision_date: str, digest_seed: str, jobs: int = 1,
+              render_part=None, parts: list[dict] | None = None, store=None) -> None:
     """Render ``html`` to ``target`` as PDF/A-3b; its relative links (assets/style.css) are
-    resolved in ``work_dir``, the build folder, and nothing outside it is served."""
+    resolved in ``work_dir``, the build folder, and nothing outside it is served.
+
+    With ``jobs`` > 1 and ``parts`` (the package's parts, :func:`calcdoc.render.parts.plan_parts`)
+    the parts are typeset on ``jobs`` processes and joined (:mod:`calcdoc.render.parts`);
+    ``render_part(part, page_of)`` returns a part's HTML; ``store``, the build cache, keeps
+    each part typeset."""
+    files = attachment_arguments(attachments, revision_date)
+    options = pdf_options(digest_seed)
+    if in_parts(jobs, parts):
+        from calcdoc.render.parts import write_pdf_in_parts
+        write_pdf_in_parts(render_part, parts, work_dir, target, files, options,
+                           _list_associated_files_once, jobs, store)
+        return
     with weasyprint_pages():  # 'PDF: laying out page N' on a terminal
-        _write_pdf(html, work_dir, target, attachments, revision_date, digest_seed)
+        fetcher = ConfinedFetcher(work_dir)
+        document = weasyprint.HTML(string=html, base_url=str(work_dir) + "/",
+                                   url_fetcher=fetcher)
+        document.write_pdf(target, attachments=attachments_for(files, work_dir, fetcher),
+                           finisher=_list_associated_files_once, **options)
 
 
-def _write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[str, bytes]],
-               revision_date: str, digest_seed: str) -> None:
-    fetcher = ConfinedFetcher(work_dir)
+def in_parts(jobs: int, parts: list[dict] | None) -> bool:
+    """Whether the package is typeset in parts: more than one process, and sheets to share."""
+    return jobs > 1 and bool(parts) and len(parts) > 2
+
+
+def attachment_arguments(attachments: list[tuple[str, bytes]], revision_date: str) -> list[dict]:
+    """Return the keyword arguments of each ``weasyprint.Attachment`` of the package (plain
+    data, so that a worker process can be given them)."""
     when = _fixed_datetime(revision_date)
-    files = [weasyprint.Attachment(string=data, name=name, description=_describe(name),
-                                   created=when, modified=when, relationship=_relationship(name),
-                                   url_fetcher=fetcher, base_url=str(work_dir))
-             for name, data in attachments]
-    document = weasyprint.HTML(string=html, base_url=str(work_dir) + "/", url_fetcher=fetcher)
+    return [{"string": data, "name": name, "description": _describe(name), "created": when,
+             "modified": when, "relationship": _relationship(name)}
+            for name, data in attachments]
+
+
+def attachments_for(files: list[dict], work_dir: Path, fetcher) -> list:
+    """Return the ``weasyprint.Attachment`` objects of :func:`attachment_arguments`."""
+    return [weasyprint.Attachment(url_fetcher=fetcher, base_url=str(work_dir), **a)
+            for a in files]
+
+
+def pdf_options(digest_seed: str) -> dict:
+    """Return WeasyPrint's PDF options for the package: PDF/A-3b, compressed, with an
+    identifier fixed by the results (a rebuild of the same inputs is byte-identical)."""
     identifier = hashlib.sha256(digest_seed.encode()).hexdigest()[:32].encode()
-    document.write_pdf(target, attachments=files, pdf_variant="pdf/a-3b",
-                       pdf_identifier=identifier, uncompressed_pdf=False,
-                       finisher=_list_associated_files_once)
+    return {"pdf_variant": "pdf/a-3b", "pdf_identifier": identifier, "uncompressed_pdf": False}
 
 
 def _relationship(name: str) -> str:

@@ -1,0 +1,187 @@
+"""The PDF typeset in parts on several processes reads as the one document would.
+
+`calcdoc build --jobs N` typesets the cover and contents, each sheet and the appendices as parts
+in parallel and joins them (calcdoc/render/parts.py). The reference is WeasyPrint's own
+pagination of the whole package as one document (`--jobs 1`): the joined PDF must have the same
+pages with the same text on each ("N of M" in the title block and the contents' page numbers
+included), the same outline, the same named destinations on the same pages, links to the same
+places, the same attachments and the same PDF/A catalog. These are the properties issue 15 asks
+to keep; the comparison with a single-document build is the check (common practice for a
+parallel path: it must agree with the serial one). The PDF/A structure of the joined PDF is
+checked clause by clause in tests/test_pdfa.py, which builds both ways.
+
+Sheets are copies of the demo's (EW1, FW1 and HG1, which refers to both), the invented scenario
+of projects/cold-store.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+import pytest
+from pypdf import PdfReader
+from test_cache import change_one_sheet, small_project
+
+from calcdoc.build import build
+from calcdoc.cache import BuildCache, cache_folder
+from calcdoc.render.parts import PartLayout, plan_parts
+
+
+@pytest.fixture(scope="module")
+def builds(tmp_path_factory):
+    """{"one": single-document build, "parts": cold build in parts, "warm": the same in parts
+    after a warm rebuild with one sheet changed, "cold": a cold build of the changed project}."""
+    base = tmp_path_factory.mktemp("parts")
+    root = small_project(base / "proj")
+    build(root, base / "one", pdf=True, cache=False, jobs=1)
+    build(root, base / "parts", pdf=True, jobs=2)
+    # the same folder again, one sheet changed: only that sheet's part (and those whose HTML
+    # changed with it) is typeset again
+    (base / "first-parts.pdf").write_bytes((base / "parts" / "package.pdf").read_bytes())
+    change_one_sheet(root)
+    build(root, base / "parts", pdf=True, jobs=2)
+    build(root, base / "cold", pdf=True, cache=False, jobs=2)
+    return {"one_first": base / "one", "parts_first": base / "first-parts.pdf",
+            "warm": base / "parts", "cold": base / "cold", "root": root}
+
+
+def reader(path: Path) -> PdfReader:
+    return PdfReader(path if path.suffix == ".pdf" else path / "package.pdf")
+
+
+def outline(r: PdfReader, items=None, depth=0) -> list[tuple[int, str, int]]:
+    found = []
+    for item in (r.outline if items is None else items):
+        if isinstance(item, list):
+            found += outline(r, item, depth + 1)
+        else:
+            found.append((depth, item.title, r.get_destination_page_number(item)))
+    return found
+
+
+def link_targets(r: PdfReader) -> list[set[str]]:
+    """Per page, the named destinations its links go to, and the URIs of external links."""
+    pages = []
+    for page in r.pages:
+        targets = set()
+        for ref in page.get("/Annots") or []:
+            annotation = ref.get_object()
+            if annotation.get("/Subtype") == "/Link":
+                action = annotation.get("/A")
+                targets.add(str(annotation["/Dest"]) if "/Dest" in annotation
+                            else str(action.get("/URI")))
+        pages.append(targets)
+    return pages
+
+
+def number_positions(r: PdfReader) -> list[tuple[str, float, float]]:
+    """Per page, where the running page number 'N of M' is drawn (text, x, y in points)."""
+    found = []
+    for number, page in enumerate(r.pages, start=1):
+        wanted = f"{number} of {len(r.pages)}"
+        hits = []
+
+        def visit(text, cm, tm, font, size, hits=hits, wanted=wanted):
+            if text.strip() == wanted:
+                hits.append((round(cm[4] + tm[4] * cm[0], 1), round(cm[5] + tm[5] * cm[3], 1)))
+        page.extract_text(visitor_text=visit)
+        found.append((wanted, *(hits[0] if hits else (None, None))))
+    return found
+
+
+def test_same_pages_with_the_same_text_as_the_one_document(builds):
+    one, parts = reader(builds["one_first"]), reader(builds["parts_first"])
+    assert len(parts.pages) == len(one.pages) > 4
+    for number, (a, b) in enumerate(zip(one.pages, parts.pages), start=1):
+        # the page number is drawn last on a joined page: compare lines, not their order
+        assert sorted(a.extract_text().splitlines()) == sorted(b.extract_text().splitlines()), \
+            f"page {number}"
+
+
+def test_page_numbers__n_of_m_on_every_page_where_the_one_document_draws_it(builds):
+    one, parts = reader(builds["one_first"]), reader(builds["parts_first"])
+    expected = number_positions(one)
+    assert all(x is not None for _, x, _ in expected)
+    got = number_positions(parts)
+    for (text, x0, y0), (_, x1, y1) in zip(expected, got):
+        assert x1 is not None, f"no '{text}'"
+        assert abs(x1 - x0) < 0.5 and abs(y1 - y0) < 0.5, text
+
+
+def test_contents_page_numbers_are_those_of_the_sheets(builds):
+    parts = reader(builds["parts_first"])
+    contents = parts.pages[1].extract_text() + "\n" + parts.pages[0].extract_text()
+    for sheet_id in ("EW1", "FW1", "HG1"):
+        page = parts.get_destination_page_number(parts.named_destinations[sheet_id]) + 1
+        # a contents row: the id, its title (may wrap), checks, sign-off, open comments, page
+        row = re.search(rf"^{sheet_id} .*?\n?.*?\n?.*? (\d+)\n(?:[A-Z]+\d |Materials)",
+                        contents, flags=re.M)
+        assert row and int(row.group(1)) == page, (sheet_id, page, row and row.group(0))
+
+
+def test_outline_destinations_and_links_as_the_one_document(builds):
+    one, parts = reader(builds["one_first"]), reader(builds["parts_first"])
+    assert outline(parts) == outline(one)
+    assert len(outline(one)) >= 3 + 5
+    dests_one, dests_parts = one.named_destinations, parts.named_destinations
+    assert sorted(dests_parts) == sorted(dests_one)
+    for name in dests_one:
+        assert (parts.get_destination_page_number(dests_parts[name])
+                == one.get_destination_page_number(dests_one[name])), name
+    assert link_targets(parts) == link_targets(one)
+    # a link from the contents (the cover part) into a sheet (another part) is there
+    assert {"EW1", "FW1", "HG1"} <= link_targets(parts)[1] | link_targets(parts)[0]
+
+
+def test_attachments_metadata_and_catalog_as_the_one_document(builds):
+    one, parts = reader(builds["one_first"]), reader(builds["parts_first"])
+    assert parts.attachments == one.attachments
+    assert "results.json" in parts.attachments
+    assert parts.metadata == one.metadata
+    root_one, root_parts = one.trailer["/Root"], parts.trailer["/Root"]
+    assert sorted(root_parts.keys()) == sorted(root_one.keys())
+    assert len(root_parts["/AF"]) == len(root_one["/AF"])
+    assert root_parts["/Metadata"].get_data() == root_one["/Metadata"].get_data()
+    # the file's permanent identifier (the first of /ID, ISO 32000-1 14.4) is the package's;
+    # the second names this version of the file, which is other bytes
+    assert parts.trailer["/ID"][0] == one.trailer["/ID"][0]
+
+
+def test_warm_rebuild_in_parts_is_byte_identical_to_a_cold_one(builds):
+    assert (builds["warm"] / "package.pdf").read_bytes() == \
+        (builds["cold"] / "package.pdf").read_bytes()
+
+
+def test_parts_kept_in_the_cache_are_those_of_the_last_build(builds):
+    store = BuildCache(cache_folder(builds["warm"]))
+    entries = sorted((store.folder / "parts").glob("*.json"))
+    # cover and contents, three sheets, appendices, and the page numbers
+    parts = plan_parts({"sheets": [{"id": s} for s in ("EW1", "FW1", "HG1")]})
+    assert len(entries) == len(parts) + 1
+
+
+def test_a_part_entry_of_the_wrong_shape_is_ignored__the_build_is_the_same(builds, tmp_path):
+    """A cache entry is read as a stranger's file: an entry whose digest holds but whose layout
+    is of another shape (a page index past the part's pages) is a miss, typeset again."""
+    store = BuildCache(cache_folder(builds["warm"]))
+    for path in (store.folder / "parts").glob("*.json"):
+        content = path.read_bytes().partition(b"\n")[2]
+        data = json.loads(content)
+        assert PartLayout.from_data(data, "x.pdf") is not None
+        bad = dict(data, bookmarks=[["Forged", [data["pages"] + 5, 0, 0], [], "open"]])
+        assert PartLayout.from_data(bad, "x.pdf") is None
+        for key, value in (("pages", -1), ("pages", "3"), ("anchors", None),
+                           ("page_numbers", [{"font_style": "x"}] * data["pages"])):
+            assert PartLayout.from_data(dict(data, **{key: value}), "x.pdf") is None
+        store._write("parts", path.stem, ".json", json.dumps(bad).encode())
+    for path in (store.folder / "pdf").glob("*.pdf"):  # not the whole PDF from the cache
+        path.unlink()
+    build(builds["root"], builds["warm"], pdf=True, jobs=2)
+    for path in (store.folder / "parts").glob("*.json"):  # replaced by what was typeset
+        data = json.loads(path.read_bytes().partition(b"\n")[2])
+        assert PartLayout.from_data(data, "x.pdf") is not None
+    assert (builds["warm"] / "package.pdf").read_bytes() == \
+        (builds["cold"] / "package.pdf").read_bytes()
+
