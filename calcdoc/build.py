@@ -87,9 +87,9 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     fraction of the time (default output folder build/<project>-<SHEET>/). ``cache`` keeps
     what was typeset and drawn for each sheet, and the PDF, in ``<out>.cache/`` beside the
     output folder (:mod:`calcdoc.cache`), so that a rebuild typesets only what changed;
-    ``cache=False`` neither reads nor writes it. ``jobs`` > 1 typesets the PDF's parts (cover
-    and contents, each sheet, the appendices) on that many processes and joins them
-    (:mod:`calcdoc.render.parts`)."""
+    ``cache=False`` neither reads nor writes it. ``jobs`` > 1 draws the figures and typesets the
+    PDF's parts (cover and contents, each sheet, the appendices) on that many processes, and
+    joins the parts (:mod:`calcdoc.render.parts`)."""
     timings: dict[str, float] = {}
     t0 = time.perf_counter()
     project_dir = Path(project_dir)
@@ -141,6 +141,9 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         results_text = dumps(results_document(package))
         (tmp / "results.json").write_text(results_text, encoding="utf-8")
         drawings = Drawings(project.precision, project.units)
+        if jobs > 1:
+            current().show(f"site: drawing the figures on {jobs} processes", force=True)
+            drawings.predraw(package, jobs)
         render_site(package_view(package, "site", drawings, changes), tmp)
         timings["html"] = time.perf_counter() - t
         if pdf:

@@ -22,7 +22,7 @@ from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
-from test_cache import change_one_sheet, small_project
+from test_cache import change_one_sheet, files_of, small_project
 
 from calcdoc.build import build
 from calcdoc.cache import BuildCache, cache_folder
@@ -149,6 +149,19 @@ def test_attachments_metadata_and_catalog_as_the_one_document(builds):
     assert parts.trailer["/ID"][0] == one.trailer["/ID"][0]
 
 
+def test_site_results_and_print_document_the_same_bytes_with_figures_drawn_on_two_processes(
+        builds, tmp_path):
+    """With --jobs 2 the figures are drawn on a pool before the views ask for them: every file
+    but the PDF (and the manifest, which lists the PDF's digest) is the one-process build's."""
+    build(builds["root"], tmp_path / "one", pdf=True, cache=False, jobs=1)
+    one, parts = files_of(tmp_path / "one"), files_of(builds["cold"])
+    assert sorted(one) == sorted(parts)
+    assert any(name.endswith(".html") and "image/svg+xml" in one[name].decode()
+               for name in one)  # figures are there to compare
+    different = [name for name in one if one[name] != parts[name]]
+    assert sorted(different) == ["manifest.json", "package.pdf"]
+
+
 def test_warm_rebuild_in_parts_is_byte_identical_to_a_cold_one(builds):
     assert (builds["warm"] / "package.pdf").read_bytes() == \
         (builds["cold"] / "package.pdf").read_bytes()
@@ -175,6 +188,11 @@ def test_a_part_entry_of_the_wrong_shape_is_ignored__the_build_is_the_same(build
         for key, value in (("pages", -1), ("pages", "3"), ("anchors", None),
                            ("page_numbers", [{"font_style": "x"}] * data["pages"])):
             assert PartLayout.from_data(dict(data, **{key: value}), "x.pdf") is None
+        lines = [line for line in data["page_numbers"] if line]
+        for family in ("x'; background: url(http://example.com/)", "", "a" * 200):
+            if lines:  # a font family is a name, never CSS of its own
+                forged = [dict(lines[0], font_family=[family])] * data["pages"]
+                assert PartLayout.from_data(dict(data, page_numbers=forged), "x.pdf") is None
         store._write("parts", path.stem, ".json", json.dumps(bad).encode())
     for path in (store.folder / "pdf").glob("*.pdf"):  # not the whole PDF from the cache
         path.unlink()
@@ -185,3 +203,20 @@ def test_a_part_entry_of_the_wrong_shape_is_ignored__the_build_is_the_same(build
     assert (builds["warm"] / "package.pdf").read_bytes() == \
         (builds["cold"] / "package.pdf").read_bytes()
 
+
+def test_a_part_that_asks_for_a_remote_image_fails_the_pdf_as_the_one_document_does(tmp_path):
+    """The confined resource loading holds in the worker processes too: a part asking for
+    anything outside the build folder fails the PDF (ResourceRefused, as tests/test_render.py
+    checks for the one document), and nothing is left behind."""
+    from calcdoc.render.pdf import ResourceRefused, write_pdf
+
+    def render_part(part, page_of):
+        if part["sheets"] == ("B",):
+            return '<html><body><p>B</p><img src="http://example.com/seal.png"></body></html>'
+        return f"<html><body><p>{part}</p></body></html>"
+
+    parts = plan_parts({"sheets": [{"id": "A"}, {"id": "B"}]})
+    with pytest.raises(ResourceRefused):
+        write_pdf("<html></html>", tmp_path, tmp_path / "x.pdf", [], "2026-11-10", "seed",
+                  jobs=2, render_part=render_part, parts=parts)
+    assert sorted(p.name for p in tmp_path.iterdir()) == []

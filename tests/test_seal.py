@@ -201,10 +201,20 @@ def test_ec_key__the_signed_copy_stays_pdf_1_7(tmp_path, package, passphrase, ca
 # ----------------------------------------------------------------------------- tampering
 
 
+def drawing_of(page):
+    """The (reference to the) stream that draws a page: its /Contents, or, on a page of a
+    package typeset in parts (calcdoc/render/parts.py: [save, drawing, restore and page
+    number]), the part's own drawing."""
+    contents = page.get_object().raw_get("/Contents")
+    if isinstance(contents.get_object(), list):
+        return contents.get_object()[1]
+    return contents
+
+
 def test_byte_changed_inside_the_signed_range__exit_1(signed, capsys):
     data = bytearray(signed.read_bytes())
     reader = PdfReader(signed)
-    contents = reader.pages[0].get_object().raw_get("/Contents")
+    contents = drawing_of(reader.pages[0])
     offset = reader.xref[0][contents.idnum]  # a stream stands outside any object stream
     at = data.index(b"stream", offset) + 40
     assert at < reader.trailer["/Root"]["/AcroForm"]["/Fields"][0].get_object()["/V"][
@@ -219,7 +229,7 @@ def test_byte_changed_inside_the_signed_range__exit_1(signed, capsys):
 
 
 def _change_page(writer):
-    stream = writer.pages[0]["/Contents"].get_object()
+    stream = drawing_of(writer.pages[0]).get_object()
     stream.set_data(stream.get_data().replace(b"T-001", b"T-002"))
 
 

@@ -662,11 +662,40 @@ class Drawings:
         return Drawn(**MEMO.lookup("figure", digest, lambda: dataclasses.asdict(
             draw(data, self.sig, self.system))))
 
+    def predraw(self, package, jobs: int) -> int:
+        """Draw every figure of the package not yet in the memo on ``jobs`` processes, before
+        the views ask for them (each is then found, drawn as the one process would have drawn
+        it: the same function of the same data); return how many were drawn."""
+        wanted: dict[str, tuple] = {}
+        table = MEMO.tables.setdefault("figure", {})
+        for sheet in package.sheets:
+            for block in sheet.blocks:
+                for data in block.output.figures:
+                    digest = data_digest(data, self.sig, self.system)
+                    if digest is not None and digest not in table and digest not in wanted:
+                        wanted[digest] = (sheet.spec.id, data)
+        if jobs < 2 or len(wanted) < 2:
+            return 0
+        from calcdoc.render.workers import pool
+        with pool(min(jobs, len(wanted))) as workers:
+            drawn = workers.map(_draw_figure, [(data, self.sig, self.system)
+                                               for _, data in wanted.values()])
+            for (digest, (sheet_id, _)), answer in zip(wanted.items(), drawn):
+                table[digest] = answer
+                MEMO.computed[sheet_id] = MEMO.computed.get(sheet_id, 0) + 1
+        return len(wanted)
+
     def steps(self, block) -> list:
         """The block's steps with their numbers printed, made once for the site and the PDF."""
         if block.key not in self.printed:
             self.printed[block.key] = block.printed_steps(self.sig, self.system)
         return self.printed[block.key]
+
+
+def _draw_figure(task: tuple) -> dict:
+    """Draw one figure in a worker process (:meth:`Drawings.predraw`); its memo answer."""
+    data, sig, system = task
+    return dataclasses.asdict(draw(data, sig, system))
 
 
 def _ref_key(ref: str, block) -> str:

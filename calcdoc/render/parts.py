@@ -18,6 +18,10 @@ worker process; the joined PDF reads as the single document would:
 - the cover part is typeset with the attachments, metadata, output intent and identifier of
   the PDF/A-3b package, and is the document the other parts' pages are added to.
 
+Each part typeset is kept in the build cache (:mod:`calcdoc.cache`) under the digest of its HTML
+and the stylesheet, with its layout as JSON (read back only in the shape checked by
+:meth:`PartLayout.from_data`), so that a rebuild typesets only the parts whose HTML changed.
+
 ``--jobs 1`` does not come here: it typesets the one document (calcdoc/render/pdf.py), which is
 the reference the tests compare this path with.
 """
@@ -26,14 +30,14 @@ from __future__ import annotations
 
 import concurrent.futures
 import math
-import multiprocessing
+import re
 import shutil
 import tempfile
-import threading
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from calcdoc.progress import current
+from calcdoc.render.workers import pool
 
 __all__ = ["write_pdf_in_parts", "PartLayout", "plan_parts"]
 
@@ -92,7 +96,8 @@ def _is_link(a) -> bool:
 def _is_line(line) -> bool:
     return (isinstance(line, dict)
             and all(_number(line[k]) for k in ("x", "y", "width", "height", "font_size"))
-            and all(isinstance(f, str) for f in line["font_family"])
+            and all(isinstance(f, str) and re.fullmatch(r"[\w .-]{1,80}", f)
+                    for f in line["font_family"])
             and type(line["font_weight"]) is int and 1 <= line["font_weight"] <= 1000
             and line["font_style"] in ("normal", "italic", "oblique")
             and len(line["color"]) == 4 and all(0 <= c <= 1 for c in line["color"]
@@ -412,14 +417,8 @@ def _typeset_many(tasks: list[tuple], labels: list[int], jobs: int, total: int):
         for label, task in zip(labels, tasks):
             yield label, typeset_part(*task)
         return
-    # fork is quickest (the worker has calcdoc and WeasyPrint loaded already) but is safe only
-    # while this process runs one thread
-    context = multiprocessing.get_context(
-        "fork" if threading.active_count() == 1 and "fork" in
-        multiprocessing.get_all_start_methods() else "spawn")
-    with concurrent.futures.ProcessPoolExecutor(max_workers=min(jobs, len(tasks)),
-                                                mp_context=context) as pool:
-        futures = {pool.submit(_typeset_in_worker, task): label
+    with pool(min(jobs, len(tasks))) as workers:
+        futures = {workers.submit(_typeset_in_worker, task): label
                    for label, task in zip(labels, tasks)}
         done = total - len(tasks)
         for future in concurrent.futures.as_completed(futures):
