@@ -649,14 +649,21 @@ class Drawings:
         self.sig, self.system = sig, system
         self.drawn: dict[str, list] = {}
         self.printed: dict[str, list] = {}
+        self._digests: dict[int, tuple] = {}  # id(data) → (data, digest): worked out once
 
     def __call__(self, block) -> list:
         if block.key not in self.drawn:
             self.drawn[block.key] = [self._draw(f) for f in block.output.figures]
         return self.drawn[block.key]
 
+    def _digest(self, data) -> str | None:
+        known = self._digests.get(id(data))
+        if known is None or known[0] is not data:
+            known = self._digests[id(data)] = (data, data_digest(data, self.sig, self.system))
+        return known[1]
+
     def _draw(self, data) -> Drawn:
-        digest = data_digest(data, self.sig, self.system)
+        digest = self._digest(data)
         if digest is None:  # data of a shape the digest does not know: drawn every time
             return draw(data, self.sig, self.system)
         return Drawn(**MEMO.lookup("figure", digest, lambda: dataclasses.asdict(
@@ -671,7 +678,7 @@ class Drawings:
         for sheet in package.sheets:
             for block in sheet.blocks:
                 for data in block.output.figures:
-                    digest = data_digest(data, self.sig, self.system)
+                    digest = self._digest(data)
                     if digest is not None and digest not in table and digest not in wanted:
                         wanted[digest] = (sheet.spec.id, data)
         if jobs < 2 or len(wanted) < 2:

@@ -94,6 +94,15 @@ def memoised(space: str, encode: Callable = lambda v: v, decode: Callable = lamb
 def _canonical(obj: Any) -> Any:
     """A JSON form of figure data that two equal data give alike (floats exactly, arrays by
     their bytes); TypeError for anything else, which is then drawn without a cache."""
+    kind = type(obj)  # the common plain types first: a figure holds thousands of them
+    if kind is float:
+        return ["f", obj.hex()]
+    if kind is str or obj is None or kind is bool:
+        return obj
+    if kind is int:
+        return ["i", obj]
+    if kind is list or kind is tuple:
+        return [kind.__name__, [_canonical(v) for v in obj]]
     if dataclasses.is_dataclass(obj) and not isinstance(obj, type):
         return [type(obj).__name__, {f.name: _canonical(getattr(obj, f.name))
                                      for f in dataclasses.fields(obj)}]
