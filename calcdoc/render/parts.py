@@ -275,12 +275,15 @@ def _join(front: PartLayout, body: list[PartLayout], numbers_pdf: str, target: P
                     dests[name] = ArrayObject([pages[offset + index].indirect_reference,
                                                NameObject("/XYZ"), FloatObject(x),
                                                FloatObject(y), NumberObject(0)])
-        # links to another part, as WeasyPrint writes its own (PDF/A: printable, /F 4)
+        offset += part.pages
+    # links to another part, as WeasyPrint writes its own (PDF/A: printable, /F 4); a link
+    # to a name no part has is dropped, as WeasyPrint drops it in one document
+    offset = 0
+    for part in parts:
         for index, links in enumerate(part.links):
             page = pages[offset + index]
             for name, (x0, y0, x1, y1) in links:
-                if name not in dests and not any(name in (a[0] for a in p_anchors)
-                                                 for p in parts for p_anchors in p.anchors):
+                if name not in dests:
                     continue
                 annotation = DictionaryObject({
                     NameObject("/Type"): NameObject("/Annot"),
@@ -294,7 +297,7 @@ def _join(front: PartLayout, body: list[PartLayout], numbers_pdf: str, target: P
                 page["/Annots"].get_object().append(writer._add_object(annotation))
         offset += part.pages
     names = ArrayObject()
-    for name in sorted(dests):
+    for name in sorted(dests, key=lambda n: TextStringObject(n).original_bytes):  # byte order
         names.append(TextStringObject(name))
         names.append(dests[name])
     name_tree = catalog["/Names"].get_object() if "/Names" in catalog else DictionaryObject()
