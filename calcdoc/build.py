@@ -193,6 +193,9 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         for sheet_id, key in sheet_keys.items():
             if MEMO.used.get(sheet_id, {}) != (loaded.get(sheet_id) or {}):
                 store.store_sheet(key, MEMO.used.get(sheet_id, {}))
+        if not pdf:  # a build without the PDF leaves the PDF's entries for the next that has it
+            store.keep("pdf")
+            store.keep("parts")
         store.prune()
     timings["total"] = time.perf_counter() - t0
     files = sorted(str(p.relative_to(out)) for p in out.rglob("*") if p.is_file())

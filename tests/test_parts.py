@@ -220,3 +220,12 @@ def test_a_part_that_asks_for_a_remote_image_fails_the_pdf_as_the_one_document_d
         write_pdf("<html></html>", tmp_path, tmp_path / "x.pdf", [], "2026-11-10", "seed",
                   jobs=2, render_part=render_part, parts=parts)
     assert sorted(p.name for p in tmp_path.iterdir()) == []
+
+
+def test_a_build_without_the_pdf_leaves_the_pdf_and_its_parts_in_the_cache(builds):
+    store = BuildCache(cache_folder(builds["warm"]))
+    before = sorted(p.name for kind in ("pdf", "parts") for p in (store.folder / kind).iterdir())
+    assert before
+    build(builds["root"], builds["warm"], pdf=False, jobs=2)
+    after = sorted(p.name for kind in ("pdf", "parts") for p in (store.folder / kind).iterdir())
+    assert after == before
