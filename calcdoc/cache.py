@@ -8,6 +8,7 @@ whole by each build)::
     pdf/<key>.pdf       a PDF, with a one-line JSON header before its bytes
     parts/<key>.pdf     one part of the PDF typeset alone (calcdoc/render/parts.py) ...
     parts/<key>.json    ... and what its pages hold: page count, anchors, links, outline
+    parts/<guess>.json  the page of each anchor in the last PDF (the contents' numbers to try)
 
 A sheet's key is the SHA-256 of the sheet's file, its resolved inputs (values from other
 sheets and from materials included), the project's number settings and the *salt*: calcdoc's
@@ -194,6 +195,23 @@ class BuildCache:
         """Keep every entry of ``kind`` at :meth:`prune` (the whole PDF came from the cache:
         the parts it was joined from stay for the next build that changes one)."""
         self.kept.add(kind)
+
+    _GUESS = hashlib.sha256(b"calcdoc: the page of each anchor in the last PDF").hexdigest()
+
+    def page_guess(self) -> dict[str, int] | None:
+        """Return the page of each anchor in the last PDF typeset in parts, or None."""
+        content = self._read("parts", self._GUESS, ".json")
+        try:
+            data = json.loads(content) if content is not None else None
+        except ValueError:
+            return None
+        ok = isinstance(data, dict) and all(
+            isinstance(k, str) and type(v) is int and v > 0 for k, v in data.items())
+        return data if ok else None
+
+    def store_page_guess(self, page_of: dict[str, int]) -> None:
+        self._write("parts", self._GUESS, ".json",
+                    json.dumps(page_of, ensure_ascii=False, sort_keys=True).encode("utf-8"))
 
     def prune(self) -> None:
         """Remove the entries this build did not use: the cache holds one build's worth."""

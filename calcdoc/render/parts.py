@@ -378,32 +378,45 @@ def write_pdf_in_parts(render_html, parts: list[dict], build_dir: Path, target: 
             if store is not None:
                 store.store_part(key, layout.data(), Path(layout.pdf).read_bytes())
 
-        html_of = [render_html(part, {}) for part in parts]
+        # the contents' page numbers of the last build, if any: when no page moved, the cover
+        # and contents typeset with them (and the attachments) alongside the sheets is final
+        guess = store.page_guess() if store is not None else None
+        html_of = [render_html(part, guess if i == 0 and guess else {})
+                   for i, part in enumerate(parts)]
         layouts, keys, todo = {}, {}, []
         for i in range(len(parts)):
-            keys[i], layouts[i] = from_cache(html_of[i], pdf_path(i))
+            if i == 0 and guess:  # with the attachments: never kept under its HTML alone
+                keys[i], layouts[i] = None, None
+            else:
+                keys[i], layouts[i] = from_cache(html_of[i], pdf_path(i))
             if layouts[i] is None:
                 todo.append(i)
-        # the cover and contents with no page numbers written (to count its pages) with the
-        # rest, the longest first so that the cores finish together
+        # the cover and contents (with no page numbers written, to count its pages, unless
+        # there is a guess) with the rest, the longest first so that the cores finish together
         todo.sort(key=lambda i: -len(html_of[i]))
-        for i, layout in _typeset_many([(html_of[i], str(build_dir), pdf_path(i), part_options)
-                                        for i in todo], todo, jobs, len(parts)):
+        tasks = [(html_of[i], str(build_dir), pdf_path(i), options, attachments, finisher)
+                 if i == 0 and guess else (html_of[i], str(build_dir), pdf_path(i), part_options)
+                 for i in todo]
+        for i, layout in _typeset_many(tasks, todo, jobs, len(parts)):
             layouts[i] = layout
-            keep(keys[i], layout)
+            if keys[i] is not None:
+                keep(keys[i], layout)
         body = [layouts[i] for i in range(1, len(parts))]
         # the cover and contents again with the page numbers written out and the attachments,
         # until the numbers written are those where the anchors then fall (the first time,
         # unless writing them moved something to another page)
         front = layouts[0]
-        for _ in range(4):
-            page_of = _anchor_pages([front] + body)
-            front = typeset_part(render_html(parts[0], page_of), str(build_dir),
-                                 pdf_path(0), options, attachments, finisher)
-            if _anchor_pages([front] + body) == page_of:
-                break
-        else:
-            raise RuntimeError("the contents' page numbers do not settle")
+        if not (guess and _anchor_pages([front] + body) == guess):
+            for _ in range(4):
+                page_of = _anchor_pages([front] + body)
+                front = typeset_part(render_html(parts[0], page_of), str(build_dir),
+                                     pdf_path(0), options, attachments, finisher)
+                if _anchor_pages([front] + body) == page_of:
+                    break
+            else:
+                raise RuntimeError("the contents' page numbers do not settle")
+        if store is not None:
+            store.store_page_guess(_anchor_pages([front] + body))
         total = front.pages + sum(b.pages for b in body)
         lines = [line for layout in [front] + body for line in layout.page_numbers]
         numbers_html = _page_numbers_html(lines, total)
