@@ -404,9 +404,10 @@ def parser() -> argparse.ArgumentParser:
                    help="neither read nor write the build cache (<out>.cache beside the "
                         "output folder): typeset and draw everything afresh")
     b.add_argument("--jobs", type=_whole_number, metavar="N",
-                   help="typeset the PDF's parts (cover and contents, each sheet, the "
-                        "appendices) on N processes and join them (default: the cores "
-                        "available; 1 typesets it as one document)")
+                   help="draw the figures and typeset the PDF's parts (cover and contents, "
+                        "each sheet, the appendices) on N processes, and join the parts "
+                        "(default: the cores available; 1: one process, the PDF typeset as "
+                        "one document)")
     b.add_argument("--sheet", action="append", metavar="ID",
                    help="build only this sheet (repeat for more), with what it refers to")
     b.add_argument("--previous", metavar="BUILD",
