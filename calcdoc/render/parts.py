@@ -407,6 +407,7 @@ def write_pdf_in_parts(render_html, parts: list[dict], build_dir: Path, target: 
         # unless writing them moved something to another page)
         front = layouts[0]
         if not (guess and _anchor_pages([front] + body) == guess):
+            current().show("PDF: the cover and contents with their page numbers")
             for _ in range(4):
                 page_of = _anchor_pages([front] + body)
                 front = typeset_part(render_html(parts[0], page_of), str(build_dir),
@@ -425,6 +426,7 @@ def write_pdf_in_parts(render_html, parts: list[dict], build_dir: Path, target: 
             numbers = typeset_part(numbers_html, str(build_dir), str(work / "numbers.pdf"),
                                    part_options)
             keep(key, numbers)
+        current().show(f"PDF: joining the parts ({total} pages)")
         _join(front, body, numbers.pdf, target, options["pdf_identifier"])
         return total
     finally:
