@@ -130,6 +130,20 @@ def test_the_package_reads_in_one_pass__pages_per_sheet_bounded(demo):
     assert len(PdfReader(str(demo / "package.pdf")).pages) <= 4 * len(sheets) + 8
 
 
+def test_contents_page_of_each_entry_is_the_page_its_bookmark_opens(demo):
+    # A contents row and the bookmark of the same heading must send the reader to the same page
+    # (the References row once pointed at the start of the appendix before it, a page early).
+    reader = PdfReader(str(demo / "package.pdf"))
+    bookmarks = {item.title: reader.get_destination_page_number(item) + 1
+                 for item in reader.outline if not isinstance(item, list)}
+    contents = reader.pages[1].extract_text()
+    for title in ("Materials", "Values to confirm", "References", "Project information",
+                  "Review comment log"):
+        row = re.search(rf"^{title}\b.* (\d+)$", contents, flags=re.M)
+        assert row, title
+        assert int(row.group(1)) == bookmarks[title], (title, row.group(0), bookmarks[title])
+
+
 def test_each_published_document_is_one_reference_entry(demo):
     # ISO 6946:2017 is one entry however many clauses of it are cited (common practice: a
     # reference list names each document and edition once; the text cites [n, clause]).
