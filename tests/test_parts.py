@@ -246,3 +246,36 @@ def test_a_build_without_the_pdf_leaves_the_pdf_and_its_parts_in_the_cache(build
     build(builds["root"], builds["warm"], pdf=False, jobs=2)
     after = sorted(p.name for kind in ("pdf", "parts") for p in (store.folder / kind).iterdir())
     assert after == before
+
+
+def test_parts_typeset_in_spawned_workers_when_this_process_runs_threads(tmp_path, monkeypatch):
+    """Fork is used only while the process runs one thread (a server's threads could hold a
+    lock across the fork); otherwise the workers are spawned, and the PDF is the same."""
+    import threading
+
+    from calcdoc.render import workers
+    from calcdoc.render.pdf import write_pdf
+
+    def render_part(part, page_of):
+        name = part["sheets"][0] if part["sheets"] else ("front" if part["front"] else "back")
+        return (f'<html><body><h1 id="{name}">{name}</h1>'
+                f'<p><a href="#A">to A</a></p></body></html>')
+
+    parts = plan_parts({"sheets": [{"id": "A"}, {"id": "B"}]})
+    methods = []
+    real_pool = workers.pool
+
+    def pool(jobs):
+        executor = real_pool(jobs)
+        methods.append(executor._mp_context.get_start_method())
+        return executor
+    monkeypatch.setattr("calcdoc.render.parts.pool", pool)
+    for threads, name in ((1, "forked.pdf"), (2, "spawned.pdf")):
+        monkeypatch.setattr(threading, "active_count", lambda threads=threads: threads)
+        write_pdf("<html></html>", tmp_path, tmp_path / name, [("a.txt", b"a")], "2026-11-10",
+                  "seed", jobs=2, render_part=render_part, parts=parts)
+    assert methods == ["fork", "spawn"]
+    forked, spawned = reader(tmp_path / "forked.pdf"), reader(tmp_path / "spawned.pdf")
+    assert len(spawned.pages) == len(forked.pages) == 4
+    assert [p.extract_text() for p in spawned.pages] == [p.extract_text() for p in forked.pages]
+    assert link_targets(spawned) == link_targets(forked) and "A" in link_targets(spawned)[0]
