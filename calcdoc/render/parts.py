@@ -152,15 +152,12 @@ def _page_number_line(page) -> dict | None:
 def typeset_part(html: str, build_dir: str, target: str, options: dict,
                  attachments: list | None = None, finisher=None) -> PartLayout:
     """Typeset one part to ``target`` and return its layout (runs in a worker process)."""
-    import weasyprint
-
-    from calcdoc.render.pdf import ConfinedFetcher, attachments_for
+    from calcdoc.render.pdf import attachments_for, print_document
 
     folder = Path(build_dir)
-    fetcher = ConfinedFetcher(folder)
+    source, fetcher = print_document(html, folder)
     files = attachments_for(attachments, folder, fetcher) if attachments is not None else None
-    document = weasyprint.HTML(string=html, base_url=str(folder) + "/",
-                               url_fetcher=fetcher).render(**options)
+    document = source.render(**options)
     anchors_here = {name for page in document.pages for name in page.anchors}
     layout = PartLayout(target, len(document.pages))
     scale = 0.75  # CSS px to PDF points
@@ -183,10 +180,6 @@ def typeset_part(html: str, build_dir: str, target: str, options: dict,
     layout.bookmarks = document.make_bookmark_tree(scale, transform_pages=True)
     document.write_pdf(target, attachments=files, finisher=finisher, **options)
     return layout
-
-
-def _typeset_in_worker(args) -> PartLayout:
-    return typeset_part(*args)
 
 
 # ----------------------------------------------------------------------------- joining
@@ -442,7 +435,7 @@ def _typeset_many(tasks: list[tuple], labels: list[int], jobs: int, total: int):
             yield label, typeset_part(*task)
         return
     with pool(min(jobs, len(tasks))) as workers:
-        futures = {workers.submit(_typeset_in_worker, task): label
+        futures = {workers.submit(typeset_part, *task): label
                    for label, task in zip(labels, tasks)}
         done = total - len(tasks)
         for future in concurrent.futures.as_completed(futures):

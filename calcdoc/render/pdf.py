@@ -23,7 +23,7 @@ from weasyprint.urls import FatalURLFetchingError, URLFetcher
 
 from calcdoc.progress import weasyprint_pages
 
-__all__ = ["write_pdf", "in_parts", "ConfinedFetcher", "ResourceRefused"]
+__all__ = ["write_pdf", "in_parts", "print_document", "ConfinedFetcher", "ResourceRefused"]
 
 LOGGER = logging.getLogger("calcdoc.pdf")
 
@@ -77,11 +77,17 @@ def write_pdf(html: str, work_dir: Path, target: Path, attachments: list[tuple[s
                            _list_associated_files_once, jobs, store)
         return
     with weasyprint_pages():  # 'PDF: laying out page N' on a terminal
-        fetcher = ConfinedFetcher(work_dir)
-        document = weasyprint.HTML(string=html, base_url=str(work_dir) + "/",
-                                   url_fetcher=fetcher)
+        document, fetcher = print_document(html, work_dir)
         document.write_pdf(target, attachments=attachments_for(files, work_dir, fetcher),
                            finisher=_list_associated_files_once, **options)
+
+
+def print_document(html: str, work_dir: Path) -> tuple[weasyprint.HTML, ConfinedFetcher]:
+    """Return ``html`` as a WeasyPrint document whose resources are fetched from ``work_dir``
+    alone, with its fetcher (which the attachments use too)."""
+    fetcher = ConfinedFetcher(work_dir)
+    return weasyprint.HTML(string=html, base_url=str(work_dir) + "/",
+                           url_fetcher=fetcher), fetcher
 
 
 def in_parts(jobs: int, parts: list[dict] | None) -> bool:
