@@ -131,11 +131,18 @@ class _Converter:
             raise InputError(self.loc(node.start_mark), "", "not a valid value",
                              "a number, a date or text", f"{text!r} ({exc})") from None
 
-    def convert(self, node: yaml.Node) -> Node:
+    def convert(self, node: yaml.Node, depth: int = 0) -> Node:
         self.count += 1
         if self.count > MAX_VALUES:
             raise _TooBig(self.loc(node.start_mark), "too many values in one file (aliases "
                           "count at every use)", f"at most {MAX_VALUES} values", "more")
+        # the prescan bounds nesting as written; an alias nests its value where it is used,
+        # and one inside the value it names (`&a [*a]`) would nest without end
+        if depth > MAX_DEPTH:
+            raise _TooBig(self.loc(node.start_mark), "nested too deeply (an alias nests its "
+                          "value where it is used)",
+                          f"at most {MAX_DEPTH} levels of mappings and lists",
+                          f"more than {MAX_DEPTH}")
         loc = self.loc(node.start_mark)
         if isinstance(node, yaml.MappingNode):
             try:
@@ -158,11 +165,11 @@ class _Converter:
                     self.errors.append(InputError(key_loc, key, "duplicate key",
                                                   "each key once", f"a second '{key}'"))
                     continue
-                out[key] = self.convert(value_node)
+                out[key] = self.convert(value_node, depth + 1)
                 key_locs[key] = key_loc
             return Node(out, loc, key_locs)
         if isinstance(node, yaml.SequenceNode):
-            return Node([self.convert(item) for item in node.value], loc)
+            return Node([self.convert(item, depth + 1) for item in node.value], loc)
         return Node(self.scalar(node), loc, style=getattr(node, "style", None))
 
 

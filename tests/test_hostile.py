@@ -194,6 +194,19 @@ def test_five_thousand_nested_brackets__refused_before_parsing_deeper(tmp_path, 
     assert len(err[1]) < 120  # the echoed line is cut around the column
 
 
+def test_alias_inside_the_value_it_names__refused_not_an_internal_error(tmp_path, capsys):
+    # `&a [*a]` is a list that contains itself: reading it used to recurse until Python
+    # stopped it (exit 3, "internal error"); so did a chain of aliases each nesting the last
+    for text in ("id: &a [*a]\n",
+                 "a0: &a0 [[[[[[[[[[1]]]]]]]]]]\n" + "".join(
+                     f"a{i}: &a{i} [[[[[[[[[[*a{i - 1}]]]]]]]]]]\n" for i in range(1, 150))):
+        status, err = run(tmp_path, capsys, {"loss": text})
+        assert status == 2, err
+        assert err[0].startswith("proj/sheets/loss.yaml:")
+        assert ("error: nested too deeply (an alias nests its value where it is used) (expected "
+                "at most 40 levels of mappings and lists, got more than 40)") in err[0]
+
+
 def test_nested_aliases__expansion_bounded(tmp_path, capsys):
     # 443 bytes that a naive loader expands to 9^8 = 43 million values.
     lines = ['a: &a ["x","x","x","x","x","x","x","x","x"]']
