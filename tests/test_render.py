@@ -374,3 +374,39 @@ def test_an_approved_revision_prints_no_preliminary_mark(tmp_path):
         assert "T-201" in text and "TP-7" in text
     assert "Approved by C. Approver" in " ".join(
         pypdf.PdfReader(out / "package.pdf").pages[0].extract_text().split())
+
+
+def test_a_long_value_to_confirm_wraps_inside_its_column_in_the_pdf(tmp_path):
+    """A value of several numbers (a rolled section's dimensions, as SB1 of the demo uses) once
+    ran over the next column, the document to check it against. Laid out with the package's
+    stylesheet, every line of the cell stays inside the cell (common practice for a table: a
+    cell's text never overlaps its neighbour)."""
+    import weasyprint
+    from weasyprint.formatting_structure import boxes
+
+    from calcdoc.render.html import TEMPLATES
+    value = "h 355, b 171.5, t_w 7.4, t_f 11.5, r 10.2 (mm)"
+    html = ('<html><body class="pdf"><table class="to-confirm"><thead><tr><th>Value</th>'
+            '<th class="num">As used</th><th>Check against</th><th>Used in</th></tr></thead>'
+            f'<tbody><tr><td>rolled section UB 356x171x51: dimensions</td>'
+            f'<td class="num" id="v">{value}</td><td>BS 4-1:2005</td><td>SB1.beam</td></tr>'
+            '</tbody></table></body></html>')
+    css = weasyprint.CSS(filename=str(TEMPLATES / "style.css"))
+    page = weasyprint.HTML(string=html).render(stylesheets=[css]).pages[0]
+
+    def find(box):
+        if getattr(box, "element", None) is not None and box.element.get("id") == "v" \
+                and isinstance(box, boxes.TableCellBox):
+            return box
+        for child in getattr(box, "children", ()):
+            found = find(child)
+            if found:
+                return found
+    cell = find(page._page_box)
+    lines = [b for b in cell.descendants() if isinstance(b, boxes.LineBox)]
+    assert len(lines) > 1  # it wraps
+    right = cell.content_box_x() + cell.width
+    for line in lines:
+        ends = [b.position_x + b.margin_width() for b in line.descendants()
+                if isinstance(b, boxes.TextBox)]
+        assert max(ends) <= right + 0.01, (max(ends), right)
