@@ -46,6 +46,8 @@ class BuildReport:
     package: Package
     timings: dict[str, float] = field(default_factory=dict)
     files: list[str] = field(default_factory=list)
+    computed: list[str] = field(default_factory=list)  # blocks whose compute ran
+    restored: list[str] = field(default_factory=list)  # blocks the cache gave back
 
 
 def final_refusals(package: Package) -> list[str]:
@@ -103,14 +105,16 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     if project is None:
         raise InputErrors(errors)
     t = time.perf_counter()
-    package = evaluate_project(project, errors, set(sheets) if sheets else None)
+    store = BuildCache(cache_folder(out)) if cache else None
+    # a package to be issued is evaluated afresh, block by block, whatever the cache holds
+    package = evaluate_project(project, errors, set(sheets) if sheets else None,
+                               store=None if final else store)
     timings["evaluate"] = time.perf_counter() - t
     if final:
         reasons = final_refusals(package)
         if reasons:
             raise FinalRefused(reasons)
     MEMO.clear()  # answers of an earlier build in this process are not this build's
-    store = BuildCache(cache_folder(out)) if cache else None
     sheet_keys, loaded = {}, {}
     if store is not None:
         for sheet in package.sheets:
@@ -199,7 +203,8 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         store.prune()
     timings["total"] = time.perf_counter() - t0
     files = sorted(str(p.relative_to(out)) for p in out.rglob("*") if p.is_file())
-    return BuildReport(out, package, timings, files)
+    computed, restored = (store.computed_blocks, store.restored_blocks) if store else ([], [])
+    return BuildReport(out, package, timings, files, list(computed), list(restored))
 
 
 def _write_error(out: Path, exc: OSError) -> InputErrors:

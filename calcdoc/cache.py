@@ -4,6 +4,7 @@ folder beside the output folder so that the next build redoes only what changed.
 Layout of ``<out>.cache/`` (beside ``<out>``, never inside it: the output folder is replaced
 whole by each build)::
 
+    blocks/<key>.json   what one block's compute wrote (results, steps, figures: calcdoc/stored.py)
     sheets/<key>.json   the answers (formulas typeset, figures drawn) one sheet's view used
     pdf/<key>.pdf       a PDF, with a one-line JSON header before its bytes
     parts/<key>.pdf     one part of the PDF typeset alone (calcdoc/render/parts.py) ...
@@ -14,17 +15,27 @@ A sheet's key is the SHA-256 of the sheet's file, its resolved inputs (values fr
 sheets and from materials included), the project's number settings and the *salt*: calcdoc's
 version, its templates, the rendering code and the versions of the libraries that typeset and
 draw. A PDF's key is the SHA-256 of the print document, the stylesheet, the attachments, the
-revision date and the salt. Nothing is unpickled: every entry is JSON or bytes, carries its key,
-its salt and the SHA-256 of its content, and is ignored unless all three match. An answer is
-a pure function of the text or data it is keyed by (:mod:`calcdoc.render.memo`), so a stale or
-missing entry only costs time; a warm build writes the same bytes as a cold one.
+revision date and the salt. A block's key is the SHA-256 of the block as written, the values
+its inputs resolved to, the project's materials and named values, the keys of the blocks it
+refers to and the *evaluation salt*: every file of the calcdoc package and the versions of the libraries
+that compute.
+
+Nothing is unpickled: every entry is JSON or bytes, carries its key, its salt, the SHA-256 of
+its content and a message authentication code (HMAC-SHA-256) made with this user's own secret
+(``$XDG_CACHE_HOME/calcdoc/cache-secret``, ``~/.cache`` by default, readable by the user
+only), and is ignored unless all four hold: a cache folder copied from someone else, or written
+by hand, is a cache of misses, never of answers. An answer is a pure function of the text or data
+it is keyed by (:mod:`calcdoc.render.memo`), so a stale or missing entry only costs time; a warm
+build writes the same bytes as a cold one. A ``--final`` build evaluates every block afresh.
 """
 
 from __future__ import annotations
 
 import hashlib
+import hmac
 import json
 import os
+import secrets
 import tempfile
 from functools import lru_cache
 from importlib import metadata
@@ -35,9 +46,10 @@ from calcdoc.render.memo import data_digest
 
 __all__ = ["BuildCache", "cache_folder", "salt"]
 
-FORMAT = 1
+FORMAT = 2
 _LIBRARIES = ("latex2mathml", "ziamath", "ziafont", "matplotlib", "weasyprint", "pydyf",
               "numpy")
+_COMPUTING = ("numpy", "scipy", "pint")
 
 
 def cache_folder(out: Path) -> Path:
@@ -64,6 +76,56 @@ def salt() -> str:
     return h.hexdigest()
 
 
+@lru_cache(maxsize=1)
+def evaluation_salt() -> str:
+    """Return the digest of what a block's answer depends on besides its inputs: every file of
+    the calcdoc package (kinds, physics, libraries of materials and sections) and the versions
+    of the libraries that compute."""
+    h = hashlib.sha256(f"calcdoc {__version__} evaluation {FORMAT}\n".encode())
+    for name in _COMPUTING:
+        try:
+            h.update(f"{name} {metadata.version(name)}\n".encode())
+        except metadata.PackageNotFoundError:
+            h.update(f"{name} -\n".encode())
+    package = Path(__file__).resolve().parent
+    for path in sorted(package.rglob("*")):
+        if path.is_file() and "__pycache__" not in path.parts and path.suffix != ".pyc":
+            h.update(str(path.relative_to(package)).encode() + b"\0" + path.read_bytes() + b"\0")
+    return h.hexdigest()
+
+
+def secret_file() -> Path:
+    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    return Path(base) / "calcdoc" / "cache-secret"
+
+
+def _secret() -> bytes | None:
+    """Return this user's secret for the cache's authentication codes, made on first use
+    (mode 0600); None when it can be neither read nor made (the cache is then not used)."""
+    path = secret_file()
+    try:
+        data = path.read_bytes()
+        if len(data) >= 32:
+            return data
+    except OSError:
+        pass
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True, mode=0o700)
+        fd, tmp = tempfile.mkstemp(prefix=".secret-", dir=path.parent)
+        with os.fdopen(fd, "wb") as handle:  # mkstemp makes it 0600
+            handle.write(secrets.token_hex(32).encode())
+        try:
+            os.link(tmp, path)  # never replaces a secret another build made meanwhile
+        except FileExistsError:
+            pass
+        finally:
+            os.unlink(tmp)
+        data = path.read_bytes()
+        return data if len(data) >= 32 else None
+    except OSError:
+        return None
+
+
 def _sha(data: bytes) -> str:
     return hashlib.sha256(data).hexdigest()
 
@@ -74,6 +136,9 @@ class BuildCache:
     def __init__(self, folder: Path):
         self.folder = Path(folder)
         self.salt = salt()
+        self.secret = _secret()
+        self.restored_blocks: list[str] = []  # blocks whose compute the cache gave back
+        self.computed_blocks: list[str] = []  # blocks computed (then kept where they could be)
         self.used: set[Path] = set()
         self.kept: set[str] = set()
 
@@ -99,6 +164,24 @@ class BuildCache:
         # costs time; its answers are keyed by their own inputs)
         return digest or data_digest(*parts)
 
+    def block_key(self, spec, records, library: str, refers_to: list, precision,
+                  units) -> str | None:
+        """The key of what one block's compute wrote: the block as written (its kind, inputs,
+        display units), what its inputs resolved to (``records``), the digest of the project's
+        materials and named values (``library``), the keys of the blocks it refers to
+        (``refers_to``, in order), the project's number settings and the evaluation salt; None
+        when part of it has no canonical form (the block is then computed every time)."""
+        from dataclasses import replace
+
+        from calcdoc.located import plain
+        if library is None or None in refers_to:
+            return None
+        written = plain(spec.inputs) if spec.inputs is not None else None
+        where_free = [replace(r, loc=None) for r in records]  # compute never reads where
+        return data_digest(evaluation_salt(), spec.key, spec.kind, written,
+                           sorted(spec.display.items()), where_free, library, refers_to,
+                           precision, units)
+
     def pdf_key(self, html: str, css: bytes, attachments: list[tuple[str, bytes]],
                 revision_date: str, digest_seed: str, in_parts: bool = False) -> str:
         h = hashlib.sha256(self.salt.encode())
@@ -120,17 +203,27 @@ class BuildCache:
     def _path(self, kind: str, key: str, suffix: str) -> Path:
         return self.folder / kind / f"{key}{suffix}"
 
+    def _mac(self, kind: str, key: str, digest: str) -> str:
+        message = json.dumps([FORMAT, kind, key, self.salt, digest]).encode()
+        return hmac.new(self.secret, message, hashlib.sha256).hexdigest()
+
     def _read(self, kind: str, key: str, suffix: str) -> bytes | None:
-        """Return an entry's content when its header names this key and salt and its digest
-        holds; None otherwise (missing, corrupted, from another version or another cache)."""
+        """Return an entry's content when its header names this key and salt, its digest
+        holds and its authentication code is this user's; None otherwise (missing, corrupted,
+        from another version, another cache or another hand)."""
+        if self.secret is None:
+            return None
         path = self._path(kind, key, suffix)
         try:
             raw = path.read_bytes()
             header_line, _, content = raw.partition(b"\n")
             header = json.loads(header_line)
+            digest = _sha(content)
             ok = (isinstance(header, dict) and header.get("format") == FORMAT
                   and header.get("key") == key and header.get("salt") == self.salt
-                  and header.get("sha256") == _sha(content))
+                  and header.get("sha256") == digest
+                  and isinstance(header.get("mac"), str)
+                  and hmac.compare_digest(header["mac"], self._mac(kind, key, digest)))
         except (OSError, ValueError, UnicodeDecodeError):
             return None
         if not ok:
@@ -139,9 +232,12 @@ class BuildCache:
         return content
 
     def _write(self, kind: str, key: str, suffix: str, content: bytes) -> None:
+        if self.secret is None:
+            return
         path = self._path(kind, key, suffix)
-        header = json.dumps({"format": FORMAT, "key": key, "salt": self.salt,
-                             "sha256": _sha(content)}).encode()
+        digest = _sha(content)
+        header = json.dumps({"format": FORMAT, "key": key, "salt": self.salt, "sha256": digest,
+                             "mac": self._mac(kind, key, digest)}).encode()
         try:
             path.parent.mkdir(parents=True, exist_ok=True)
             fd, tmp = tempfile.mkstemp(prefix=".entry-", dir=path.parent)
@@ -168,6 +264,19 @@ class BuildCache:
     def store_sheet(self, key: str, answers: dict) -> None:
         self._write("sheets", key, ".json",
                     json.dumps(answers, ensure_ascii=False, sort_keys=True).encode("utf-8"))
+
+    def load_block(self, key: str):
+        """Return the JSON data a block's compute wrote (:func:`calcdoc.stored.restore_output`
+        checks its form), or None."""
+        content = self._read("blocks", key, ".json")
+        try:
+            return json.loads(content) if content is not None else None
+        except ValueError:
+            return None
+
+    def store_block(self, key: str, data: dict) -> None:
+        self._write("blocks", key, ".json",
+                    json.dumps(data, ensure_ascii=False, sort_keys=True).encode("utf-8"))
 
     def load_pdf(self, key: str) -> bytes | None:
         return self._read("pdf", key, ".pdf")
@@ -215,7 +324,7 @@ class BuildCache:
 
     def prune(self) -> None:
         """Remove the entries this build did not use: the cache holds one build's worth."""
-        for kind in ("sheets", "pdf", "parts"):
+        for kind in ("blocks", "sheets", "pdf", "parts"):
             if kind in self.kept:
                 continue
             folder = self.folder / kind

@@ -47,6 +47,16 @@ def cmd_build(args) -> int:
     failed = [c for s in report.package.sheets for c in s.checks if not c.passed]
     times = ", ".join(f"{k} {v:.2f} s" for k, v in report.timings.items())
     print(f"built {report.out_dir} ({len(report.files)} files; {times})")
+    if report.restored:
+        from calcdoc.cache import cache_folder
+        folder = cache_folder(report.out_dir)
+        try:
+            folder = folder.relative_to(Path.cwd())
+        except ValueError:
+            pass
+        blocks = len(report.restored) + len(report.computed)
+        print(f"{len(report.restored)} of {blocks} blocks unchanged: their results and working "
+              f"taken from {folder} (--no-cache computes every block)")
     if failed:
         print(f"{len(failed)} check(s) FAIL: see the summary of results")
     return 0
@@ -402,7 +412,8 @@ def parser() -> argparse.ArgumentParser:
     b.add_argument("--no-pdf", action="store_true", help="skip the PDF")
     b.add_argument("--no-cache", action="store_true",
                    help="neither read nor write the build cache (<out>.cache beside the "
-                        "output folder): typeset and draw everything afresh")
+                        "output folder): compute, typeset and draw everything afresh "
+                        "(--final always computes every block afresh)")
     b.add_argument("--jobs", type=_whole_number, metavar="N",
                    help="draw the figures and typeset the PDF's parts (cover and contents, "
                         "each sheet, the appendices) on N processes, and join the parts "

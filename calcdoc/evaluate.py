@@ -121,10 +121,13 @@ def evaluate_folder(folder) -> Package:
 
 
 def evaluate_project(project: Project, errors: list[InputError] | None = None,
-                     only: set[str] | None = None) -> Package:
+                     only: set[str] | None = None, store=None) -> Package:
     """Return the evaluated package; raise InputErrors listing every problem found (and
     ``errors`` found before, e.g. by the loader). ``only`` names the sheets wanted: they and
-    the blocks they refer to are evaluated, the package holds only them."""
+    the blocks they refer to are evaluated, the package holds only them. ``store``, a
+    :class:`calcdoc.cache.BuildCache`, gives back what a block's compute wrote in an earlier
+    build with the same key (and keeps what it writes now): inputs are still read, resolved
+    and range-checked, and checks still made, every time."""
     errors = list(errors or [])
     if only is not None:
         known = {s.id for s in project.sheets}
@@ -140,12 +143,13 @@ def evaluate_project(project: Project, errors: list[InputError] | None = None,
     ordered = _order(project, errors, only)
     done: dict[str, EvaluatedBlock] = {}
     failed: set[str] = set()
+    stored = _Stored(store, project) if store is not None else None
 
     failed.update(project.unreadable)
     progress = current()
     for number, spec in enumerate(ordered, 1):
         progress.show(f"evaluate: block {number} of {len(ordered)}, {spec.key} ({spec.kind})")
-        block = _evaluate_block(spec, project, done, failed, errors)
+        block = _evaluate_block(spec, project, done, failed, errors, stored)
         if block is None:
             failed.add(spec.key)
         else:
@@ -213,7 +217,46 @@ def _resolver(spec: BlockSpec, done: dict, failed: set):
     return resolve
 
 
-def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
+class _Stored:
+    """The build cache as evaluation uses it: the key of each block evaluated so far."""
+
+    def __init__(self, store, project: Project):
+        from calcdoc.render.memo import data_digest
+        self.store = store
+        self.library = data_digest(project.materials, project.named)
+        self.keys: dict[str, str | None] = {}
+        self.restored: list[str] = store.restored_blocks
+        self.computed: list[str] = store.computed_blocks
+
+    def key(self, spec: BlockSpec, records, project: Project) -> str | None:
+        targets = []
+        for ref_node in _refs_in(spec.inputs):
+            parsed = parse_ref(ref_node.value, spec.sheet_id)
+            targets.append(self.keys.get(f"{parsed[0]}.{parsed[1]}") if parsed else None)
+        key = self.store.block_key(spec, records, self.library, targets, project.precision,
+                                   project.units)
+        self.keys[spec.key] = key
+        return key
+
+    def restore(self, key: str | None, out: BlockOutput) -> bool:
+        from calcdoc.stored import Unstorable, restore_output
+        data = self.store.load_block(key) if key else None
+        if data is None:
+            return False
+        try:
+            restore_output(out, data)
+        except Unstorable:
+            return False
+        return True
+
+    def keep(self, key: str | None, out: BlockOutput) -> None:
+        from calcdoc.stored import encode_output
+        data = encode_output(out) if key else None
+        if data is not None:
+            self.store.store_block(key, data)
+
+
+def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors, stored=None):
     kind = get_kind(spec.kind)
     if kind is None:
         return None  # reported by the loader
@@ -251,6 +294,11 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
                                          "display unit of the wrong dimension",
                                          dimension_text(declared.unit), repr(unit)))
     out = BlockOutput(kind, spec.display, spec.key, ctx.records)
+    key = stored.key(spec, ctx.records, project) if stored is not None else None
+    if key is not None and stored.restore(key, out):
+        stored.restored.append(spec.key)
+        return _finish(spec, kind, ctx, out, project, errors)
+    recorded = len(ctx.records)
     try:
         kind.compute(inp, out)
     except MissingInput as exc:  # an input needed only for some choices is absent
@@ -277,6 +325,15 @@ def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors):
                                  "printed", f"an expression of {exc.expected}",
                                  exc.got, "split the block, or give its lists fewer items"))
         return None
+    if stored is not None:
+        stored.computed.append(spec.key)
+        if len(ctx.records) == recorded:  # compute read its inputs and wrote only on out
+            stored.keep(key, out)
+    return _finish(spec, kind, ctx, out, project, errors)
+
+
+def _finish(spec: BlockSpec, kind, ctx, out: BlockOutput, project: Project, errors):
+    """The block's checks against what it computed (or what the cache gave back)."""
     checks = []
     for check in spec.checks:
         result = _check(check, spec, out, project, errors)

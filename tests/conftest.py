@@ -31,6 +31,20 @@ def write_project(root: Path, sheets: dict[str, str], project_yaml: str = PROJEC
     return root
 
 
+@pytest.fixture(autouse=True, scope="session")
+def _own_cache_secret(tmp_path_factory):
+    """The build cache signs its entries with the user's secret (calcdoc/cache.py): the tests
+    (and the commands they start) use a secret of their own, not the user's."""
+    import os
+    before = os.environ.get("XDG_CACHE_HOME")
+    os.environ["XDG_CACHE_HOME"] = str(tmp_path_factory.mktemp("xdg-cache"))
+    yield
+    if before is None:
+        os.environ.pop("XDG_CACHE_HOME", None)
+    else:
+        os.environ["XDG_CACHE_HOME"] = before
+
+
 @pytest.fixture(autouse=True)
 def _in_tmp_path(tmp_path, monkeypatch):
     """Run each test from its own folder, as a user runs calcdoc from beside the project:

@@ -3,8 +3,10 @@
 What is checked is the contract of issue 15 and docs/format.md's `build` command, not numbers:
 a rebuild with the cache (`<out>.cache` beside the output folder) must give byte-identical site
 files, results.json, manifest and PDF to a build without it (common practice for build caches:
-a cache may save time, never change an output); an entry that is corrupted, or made by another
-version of the program, is ignored; a sheet that did not change is not typeset again.
+a cache may save time, never change an output); an entry that is corrupted, made by another
+version of the program, or written by anyone but this user's calcdoc (its authentication code),
+is ignored; a sheet that did not change is not typeset again, a block whose inputs did not change
+not computed again, and a package built with --final computes every block.
 Sheets are copies of the demo's (EW1, FW1 and HG1, which takes its U-values from the other two
 by reference), the invented scenario of projects/cold-store.
 """
@@ -61,8 +63,9 @@ def warm_and_cold(tmp_path_factory):
     root = small_project(base / "proj")
     build(root, base / "out", pdf=True)
     change_one_sheet(root)
-    build(root, base / "out", pdf=True)
+    report = build(root, base / "out", pdf=True)
     computed = dict(MEMO.computed)
+    computed["blocks"] = (report.computed, report.restored)
     build(root, base / "cold", pdf=True, cache=False)
     return base / "out", base / "cold", computed
 
@@ -82,6 +85,109 @@ def test_warm_rebuild_typesets_only_the_changed_sheet_and_what_refers_to_it(warm
     _, _, computed = warm_and_cold
     assert computed.get("FW1", 0) == 0  # unchanged, nothing it uses changed: all from cache
     assert computed.get("EW1", 0) > 0 and computed.get("HG1", 0) > 0
+
+
+def test_warm_rebuild_computes_only_the_changed_block_and_the_block_that_refers_to_it(
+        warm_and_cold):
+    _, _, computed = warm_and_cold
+    ran, given_back = computed["blocks"]
+    assert sorted(ran) == ["EW1.wall", "HG1.gains"]  # EW1 changed; HG1 takes EW1's U
+    assert given_back == ["FW1.wall"]
+
+
+def test_every_block_of_the_demo_is_kept_and_given_back_exactly():
+    """What a block's compute wrote, through JSON and back, is the same data to the last bit
+    (floats by their hex form, arrays by their bytes, each class by its name); only a block
+    handing on a solver object (the fire curve FC1 hands to the blocks it heats) is not kept."""
+    from calcdoc.evaluate import evaluate_folder
+    from calcdoc.kinds.base import BlockOutput
+    from calcdoc.stored import _WRITTEN, encode_output, restore_output
+    package = evaluate_folder(DEMO)
+    not_kept = []
+    for sheet in package.sheets:
+        for block in sheet.blocks:
+            out = block.output
+            data = encode_output(out)
+            if data is None:
+                not_kept.append(block.spec.key)
+                continue
+            again = BlockOutput(block.kind, block.spec.display, block.spec.key,
+                                block.inputs)
+            restore_output(again, json.loads(json.dumps(data, sort_keys=True)))
+            for name in _WRITTEN:
+                assert data_digest(getattr(again, name)) == data_digest(getattr(out, name)), \
+                    (block.spec.key, name)
+                assert data_digest(getattr(out, name)) is not None
+            assert again.declared_results() == out.declared_results()
+            assert all(a is b for a, b in zip(again.declared_results(), block.kind.results))
+    assert not_kept == ["FC1.fire"]
+
+
+def test_stored_form_reads_back_only_the_classes_it_knows():
+    from calcdoc.stored import Unstorable, _decode
+    for forged in ({"$": "Popen", "f": {"args": "rm -rf /"}},
+                   {"$": "Value", "f": {"si": 1.0}},  # fields missing
+                   {"$": "nd", "dtype": "O", "shape": [1], "v": [1]},  # object array
+                   {"$": "float", "v": "1e308"},
+                   {"plain": "mapping"}):
+        with pytest.raises(Unstorable):
+            _decode(forged)
+
+
+def test_block_entry_not_written_by_this_users_calcdoc_is_ignored(tmp_path, monkeypatch):
+    """A result changed in an entry whose header (key, salt, SHA-256) is made to match, as
+    anyone with the folder could: its authentication code does not hold, the block is computed
+    afresh. A whole cache folder made with another user's secret gives no answers at all."""
+    import hashlib
+    root = small_project(tmp_path / "proj")
+    out = tmp_path / "out"
+    reference = _html_build(root, tmp_path / "ref", cache=False)
+    build(root, out, pdf=False)
+    entries = sorted((cache_folder(out) / "blocks").iterdir())
+    assert len(entries) == 3
+    forged = None
+    for entry in entries:
+        header, _, content = entry.read_bytes().partition(b"\n")
+        if b'"U"' not in content:
+            continue
+        data = json.loads(content)
+        pairs = data["results"]["v"]
+        for pair in pairs:
+            if pair[0] == "U":
+                pair[1]["f"]["value"] *= 0.5  # a U-value halved
+        content = json.dumps(data, sort_keys=True).encode()
+        fields = json.loads(header)
+        fields["sha256"] = hashlib.sha256(content).hexdigest()
+        entry.write_bytes(json.dumps(fields).encode() + b"\n" + content)
+        forged = entry.stem
+        break
+    assert forged is not None
+    assert BuildCache(cache_folder(out)).load_block(forged) is None
+    report = build(root, out, pdf=False)
+    assert files_of(out) == reference
+    assert len(report.computed) == 1 and len(report.restored) == 2
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "someone-else"))
+    other = BuildCache(cache_folder(out))
+    assert [other.load_block(p.stem) for p in entries] == [None, None, None]
+    report = build(root, out, pdf=False)
+    assert files_of(out) == reference and report.restored == []
+
+
+def test_final_build_computes_every_block_whatever_the_cache_holds(tmp_path, monkeypatch):
+    import calcdoc.build as building
+    from calcdoc.errors import FinalRefused
+    root = small_project(tmp_path / "proj")
+    build(root, tmp_path / "out", pdf=False)
+    stores = []
+    real = building.evaluate_project
+
+    def spy(*args, store=None, **kwargs):
+        stores.append(store)
+        return real(*args, store=store, **kwargs)
+    monkeypatch.setattr(building, "evaluate_project", spy)
+    with pytest.raises(FinalRefused):  # the demo's sheets are not ready to issue
+        build(root, tmp_path / "out", pdf=False, final=True)
+    assert stores == [None]
 
 
 def test_cache_folder_is_beside_the_output_folder_not_inside(warm_and_cold):

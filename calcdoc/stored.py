@@ -1,0 +1,166 @@
+"""What a block's ``compute`` wrote, to JSON and back, for the build cache (:mod:`calcdoc.cache`).
+
+A :class:`~calcdoc.kinds.base.BlockOutput` is data only (results, steps, statements, notes,
+warnings, series and figures, :mod:`calcdoc.data`), so it can be kept as JSON and given back
+exactly: floats by their shortest repr (which reads back to the same bits), tuples, dicts,
+NumPy numbers and arrays tagged as what they were, each dataclass by its name from a closed
+list. Anything else (a series carrying a solver's object, a fire curve handed on to the blocks
+that refer to it) cannot be kept: :func:`encode_output` returns None and the block is simply
+computed on every build. Nothing is unpickled; a name outside the list is refused on reading.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from calcdoc.data import Axis, Band, Box, Contours, FigureData, Line, Mark, Phrase, Point, Step, Value
+from calcdoc.kinds.base import BlockOutput, ResultSpec, ResultValue, Series
+from calcdoc.references import Cite
+
+__all__ = ["encode_output", "restore_output", "Unstorable"]
+
+FORMAT = 1
+_CLASSES = {cls.__name__: cls for cls in (Value, Phrase, Step, Axis, Line, Band, Box, Mark, Point,
+                                          Contours, FigureData, Series, ResultSpec, ResultValue,
+                                          Cite)}
+_NUMERIC = "biuf"  # NumPy dtype kinds kept: bool, signed, unsigned, float
+
+
+class Unstorable(ValueError):
+    """A value outside what :func:`encode_output` keeps, or a stored form it does not read."""
+
+
+def _encode(obj):
+    kind = type(obj)
+    if kind is float:
+        # json writes NaN and ±inf as bare words it reads back; tag them all the same way
+        return obj if math.isfinite(obj) else {"$": "float", "v": repr(obj)}
+    if obj is None or kind in (str, int, bool):
+        return obj
+    if kind is list:
+        return [_encode(v) for v in obj]
+    if kind is tuple:
+        return {"$": "tuple", "v": [_encode(v) for v in obj]}
+    if kind is dict:
+        return {"$": "dict", "v": [[_encode(k), _encode(v)] for k, v in obj.items()]}
+    name = kind.__name__
+    if _CLASSES.get(name) is kind:
+        fields = {f.name: _encode(getattr(obj, f.name)) for f in dataclasses.fields(obj)}
+        if kind is Series and obj.obj is not None:
+            raise Unstorable(f"series {obj.name} carries a {type(obj.obj).__name__}")
+        return {"$": name, "f": fields}
+    if isinstance(obj, np.generic) and obj.dtype.kind in _NUMERIC:
+        return {"$": "np", "dtype": obj.dtype.str, "v": _encode(obj.item())}
+    if isinstance(obj, np.ndarray) and obj.dtype.kind in _NUMERIC:
+        return {"$": "nd", "dtype": obj.dtype.str, "shape": list(obj.shape),
+                "v": [_encode(v) for v in obj.ravel().tolist()]}
+    raise Unstorable(f"no stored form for {kind.__name__}")
+
+
+def _decode(obj):
+    if obj is None or type(obj) in (str, int, float, bool):
+        return obj
+    if type(obj) is list:
+        return [_decode(v) for v in obj]
+    if type(obj) is not dict:
+        raise Unstorable(f"unexpected {type(obj).__name__}")
+    tag = obj.get("$")
+    if tag == "float":
+        value = obj["v"]
+        if value not in ("nan", "inf", "-inf"):
+            raise Unstorable(f"unexpected float {value!r}")
+        return float(value)
+    if tag == "tuple":
+        return tuple(_decode(v) for v in _list(obj["v"]))
+    if tag == "dict":
+        return {_decode(k): _decode(v) for k, v in (_pair(p) for p in _list(obj["v"]))}
+    if tag == "np":
+        dtype = _dtype(obj["dtype"])
+        return dtype.type(_decode(obj["v"]))
+    if tag == "nd":
+        dtype = _dtype(obj["dtype"])
+        shape = tuple(int(n) for n in _list(obj["shape"]))
+        return np.array([_decode(v) for v in _list(obj["v"])], dtype=dtype).reshape(shape)
+    cls = _CLASSES.get(tag) if isinstance(tag, str) else None
+    if cls is None or type(obj.get("f")) is not dict:
+        raise Unstorable(f"unknown stored class {tag!r}")
+    names = {f.name for f in dataclasses.fields(cls)}
+    if set(obj["f"]) != names:
+        raise Unstorable(f"{tag}: fields {sorted(obj['f'])}, not {sorted(names)}")
+    return cls(**{k: _decode(v) for k, v in obj["f"].items()})
+
+
+def _list(value) -> list:
+    if type(value) is not list:
+        raise Unstorable("a list expected")
+    return value
+
+
+def _pair(value) -> list:
+    if type(value) is not list or len(value) != 2:
+        raise Unstorable("a key and a value expected")
+    return value
+
+
+def _dtype(text) -> np.dtype:
+    if not isinstance(text, str):
+        raise Unstorable("a dtype expected")
+    try:
+        dtype = np.dtype(text)
+    except TypeError:
+        raise Unstorable(f"unknown dtype {text!r}") from None
+    if dtype.kind not in _NUMERIC:
+        raise Unstorable(f"dtype {text!r} is not numeric")
+    return dtype
+
+
+# What compute writes on a BlockOutput; the rest (kind, key, display, records) is the block's.
+_WRITTEN = ("results", "steps", "warnings", "notes", "series", "absent", "simulated_until",
+            "figures")
+
+
+def encode_output(out: BlockOutput) -> dict | None:
+    """Return what ``compute`` wrote on ``out`` as JSON data, or None when part of it cannot
+    be kept (a series' object, an attribute this module does not know)."""
+    known = set(_WRITTEN) | {"kind", "block_key", "display_overrides", "records", "_declared",
+                             "_index", "_indexed"}
+    if set(vars(out)) - known:
+        return None
+    try:
+        data = {name: _encode(getattr(out, name)) for name in _WRITTEN}
+        data["declared"] = _encode(list(out._declared.values()))
+    except Unstorable:
+        return None
+    data["format"] = FORMAT
+    return data
+
+
+def restore_output(out: BlockOutput, data) -> None:
+    """Write on ``out`` (fresh, nothing computed) what :func:`encode_output` kept; raise
+    Unstorable when ``data`` is not of that form (``out`` is then left unchanged)."""
+    if not isinstance(data, dict) or data.get("format") != FORMAT or \
+            set(data) != set(_WRITTEN) | {"declared", "format"}:
+        raise Unstorable("not a stored block output")
+    try:
+        values = {name: _decode(data[name]) for name in _WRITTEN}
+        declared = _decode(data["declared"])
+    except (KeyError, TypeError, ValueError, AttributeError) as exc:
+        raise Unstorable(str(exc)) from None
+    shapes = {"results": dict, "steps": list, "warnings": list, "notes": list, "series": dict,
+              "absent": dict, "figures": list}
+    for name, shape in shapes.items():
+        if type(values[name]) is not shape:
+            raise Unstorable(f"{name}: {type(values[name]).__name__}")
+    if not isinstance(declared, list) or not all(isinstance(r, ResultSpec) for r in declared):
+        raise Unstorable("declared results")
+    own = {r.name: r for r in out.kind.results}
+    # the kind's own declarations stay the kind's objects; a block's own (formula) are added
+    out._declared = {r.name: own[r.name] if own.get(r.name) == r else r for r in declared}
+    for name, result in values["results"].items():
+        if isinstance(result, ResultValue) and out._declared.get(name) == result.spec:
+            values["results"][name] = ResultValue(out._declared[name], result.value)
+    for name in _WRITTEN:
+        setattr(out, name, values[name])
