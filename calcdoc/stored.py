@@ -40,10 +40,12 @@ def _encode(obj):
         return obj if math.isfinite(obj) else {"$": "float", "v": repr(obj)}
     if obj is None or kind in (str, int, bool):
         return obj
-    if kind is list:
-        return [_encode(v) for v in obj]
-    if kind is tuple:
-        return {"$": "tuple", "v": [_encode(v) for v in obj]}
+    if kind is list or kind is tuple:
+        if _finite_floats(obj):  # a curve: as it stands (the common case, thousands of points)
+            items = list(obj)
+        else:
+            items = [_encode(v) for v in obj]
+        return items if kind is list else {"$": "tuple", "v": items}
     if kind is dict:
         return {"$": "dict", "v": [[_encode(k), _encode(v)] for k, v in obj.items()]}
     name = kind.__name__
@@ -64,6 +66,8 @@ def _decode(obj):
     if obj is None or type(obj) in (str, int, float, bool):
         return obj
     if type(obj) is list:
+        if all(type(v) is float for v in obj):  # a curve; json gives floats only for floats
+            return obj
         return [_decode(v) for v in obj]
     if type(obj) is not dict:
         raise Unstorable(f"unexpected {type(obj).__name__}")
@@ -74,7 +78,7 @@ def _decode(obj):
             raise Unstorable(f"unexpected float {value!r}")
         return float(value)
     if tag == "tuple":
-        return tuple(_decode(v) for v in _list(obj["v"]))
+        return tuple(_decode(_list(obj["v"])))
     if tag == "dict":
         return {_decode(k): _decode(v) for k, v in (_pair(p) for p in _list(obj["v"]))}
     if tag == "np":
@@ -91,6 +95,15 @@ def _decode(obj):
     if set(obj["f"]) != names:
         raise Unstorable(f"{tag}: fields {sorted(obj['f'])}, not {sorted(names)}")
     return cls(**{k: _decode(v) for k, v in obj["f"].items()})
+
+
+def _finite_floats(items) -> bool:
+    if not all(type(v) is float for v in items):
+        return False
+    try:
+        return math.isfinite(math.fsum(items))  # NaN or ±inf in it: each one tagged
+    except (OverflowError, ValueError):  # past the largest float, or inf - inf
+        return all(math.isfinite(v) for v in items)
 
 
 def _list(value) -> list:
