@@ -116,6 +116,7 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
             raise FinalRefused(reasons)
     MEMO.clear()  # answers of an earlier build in this process are not this build's
     sheet_keys, loaded = {}, {}
+    printed = _seed_printed(store, package) if store is not None else {}
     if store is not None:
         for sheet in package.sheets:
             key = sheet_keys[sheet.id] = store.sheet_key(package, sheet)
@@ -194,6 +195,7 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         shutil.rmtree(tmp, ignore_errors=True)
         raise
     if store is not None:
+        _keep_printed(store, package, printed)
         for sheet_id, key in sheet_keys.items():
             if MEMO.used.get(sheet_id, {}) != (loaded.get(sheet_id) or {}):
                 store.store_sheet(key, MEMO.used.get(sheet_id, {}))
@@ -205,6 +207,50 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     files = sorted(str(p.relative_to(out)) for p in out.rglob("*") if p.is_file())
     computed, restored = (store.computed_blocks, store.restored_blocks) if store else ([], [])
     return BuildReport(out, package, timings, files, list(computed), list(restored))
+
+
+def _seed_printed(store: BuildCache, package: Package) -> dict[str, str]:
+    """Give each block whose compute the cache gave back its steps as printed, when the cache
+    has them; return the printed key of every block that has a key, for :func:`_keep_printed`."""
+    from calcdoc.stored import Unstorable, restore_printed
+    sig, system = package.project.precision, package.project.units
+    keys = {}
+    for sheet in package.sheets:
+        for block in sheet.blocks:
+            block_key = store.block_keys.get(block.key)
+            if block_key is None:
+                continue
+            key = keys[block.key] = store.printed_key(block_key, sig, system)
+            data = store.load_printed(key)
+            if data is None:
+                continue
+            try:
+                steps = restore_printed(data)
+            except Unstorable:
+                continue
+            if len(steps) == len(block.output.steps):
+                block.__dict__.setdefault("_printed", {})[sig, system] = steps
+    return keys
+
+
+def _keep_printed(store: BuildCache, package: Package, keys: dict[str, str]) -> None:
+    """Keep the steps as printed of each block that has a key (written anew only when the
+    cache did not give them)."""
+    from calcdoc.stored import encode_printed
+    sig, system = package.project.precision, package.project.units
+    for sheet in package.sheets:
+        for block in sheet.blocks:
+            key = keys.get(block.key)
+            if key is None:
+                continue
+            steps = block.__dict__.get("_printed", {}).get((sig, system))
+            if steps is None:
+                continue
+            if store.used_entry("printed", key, ".json"):
+                continue  # read from the cache this build: already there
+            data = encode_printed(steps)
+            if data is not None:
+                store.store_printed(key, data)
 
 
 def _write_error(out: Path, exc: OSError) -> InputErrors:

@@ -5,6 +5,7 @@ Layout of ``<out>.cache/`` (beside ``<out>``, never inside it: the output folder
 whole by each build)::
 
     blocks/<key>.json   what one block's compute wrote (results, steps, figures: calcdoc/stored.py)
+    printed/<key>.json  that block's steps as printed (numbers to the figures that re-do them)
     sheets/<key>.json   the answers (formulas typeset, figures drawn) one sheet's view used
     pdf/<key>.pdf       a PDF, with a one-line JSON header before its bytes
     parts/<key>.pdf     one part of the PDF typeset alone (calcdoc/render/parts.py) ...
@@ -58,22 +59,30 @@ def cache_folder(out: Path) -> Path:
     return out.parent / f"{out.name}.cache"
 
 
-@lru_cache(maxsize=1)
-def salt() -> str:
-    """Return the digest of everything besides its inputs that an entry depends on."""
-    h = hashlib.sha256(f"calcdoc {__version__} cache {FORMAT}\n".encode())
-    for name in _LIBRARIES:
+def _digest_of(what: str, libraries: tuple, files: list[Path], root: Path) -> str:
+    """The SHA-256 of calcdoc's version, the versions of ``libraries`` and ``files`` (each by
+    its path under ``root`` and its bytes)."""
+    h = hashlib.sha256(f"calcdoc {__version__} {what} {FORMAT}\n".encode())
+    for name in libraries:
         try:
             h.update(f"{name} {metadata.version(name)}\n".encode())
         except metadata.PackageNotFoundError:
             h.update(f"{name} -\n".encode())
+    for path in files:
+        if path.is_file() and "__pycache__" not in path.parts and path.suffix != ".pyc":
+            name = path.relative_to(root) if path.is_relative_to(root) else path.name
+            h.update(str(name).encode() + b"\0" + path.read_bytes() + b"\0")
+    return h.hexdigest()
+
+
+@lru_cache(maxsize=1)
+def salt() -> str:
+    """Return the digest of everything besides its inputs that a view's entry depends on: the
+    templates, the rendering code and the libraries that typeset and draw."""
     from calcdoc.render.html import TEMPLATES
     package = Path(__file__).resolve().parent
     files = sorted(TEMPLATES.rglob("*")) + sorted((package / "render").glob("*.py"))
-    for path in files:
-        if path.is_file():
-            h.update(path.name.encode() + b"\0" + path.read_bytes() + b"\0")
-    return h.hexdigest()
+    return _digest_of("cache", _LIBRARIES, files, package)
 
 
 @lru_cache(maxsize=1)
@@ -81,17 +90,8 @@ def evaluation_salt() -> str:
     """Return the digest of what a block's answer depends on besides its inputs: every file of
     the calcdoc package (kinds, physics, libraries of materials and sections) and the versions
     of the libraries that compute."""
-    h = hashlib.sha256(f"calcdoc {__version__} evaluation {FORMAT}\n".encode())
-    for name in _COMPUTING:
-        try:
-            h.update(f"{name} {metadata.version(name)}\n".encode())
-        except metadata.PackageNotFoundError:
-            h.update(f"{name} -\n".encode())
     package = Path(__file__).resolve().parent
-    for path in sorted(package.rglob("*")):
-        if path.is_file() and "__pycache__" not in path.parts and path.suffix != ".pyc":
-            h.update(str(path.relative_to(package)).encode() + b"\0" + path.read_bytes() + b"\0")
-    return h.hexdigest()
+    return _digest_of("evaluation", _COMPUTING, sorted(package.rglob("*")), package)
 
 
 def secret_file() -> Path:
@@ -138,6 +138,7 @@ class BuildCache:
         self.salt = salt()
         self.secret = _secret()
         self.restored_blocks: list[str] = []  # blocks whose compute the cache gave back
+        self.block_keys: dict[str, str | None] = {}  # block → its key, as evaluation made it
         self.computed_blocks: list[str] = []  # blocks computed (then kept where they could be)
         self.used: set[Path] = set()
         self.kept: set[str] = set()
@@ -278,6 +279,22 @@ class BuildCache:
         self._write("blocks", key, ".json",
                     json.dumps(data, ensure_ascii=False, sort_keys=True).encode("utf-8"))
 
+    def printed_key(self, block_key: str, sig: int, system: str) -> str:
+        """The key of a block's steps as printed: the block's key, the significant figures and
+        the unit system, and the view's salt."""
+        return data_digest(self.salt, block_key, sig, system)
+
+    def load_printed(self, key: str):
+        content = self._read("printed", key, ".json")
+        try:
+            return json.loads(content) if content is not None else None
+        except ValueError:
+            return None
+
+    def store_printed(self, key: str, data: list) -> None:
+        self._write("printed", key, ".json",
+                    json.dumps(data, ensure_ascii=False, sort_keys=True).encode("utf-8"))
+
     def load_pdf(self, key: str) -> bytes | None:
         return self._read("pdf", key, ".pdf")
 
@@ -299,6 +316,10 @@ class BuildCache:
         self._write("parts", key, ".pdf", pdf)
         self._write("parts", key, ".json",
                     json.dumps(layout, ensure_ascii=False, sort_keys=True).encode("utf-8"))
+
+    def used_entry(self, kind: str, key: str, suffix: str) -> bool:
+        """Whether this build read or wrote that entry."""
+        return self._path(kind, key, suffix) in self.used
 
     def keep(self, kind: str) -> None:
         """Keep every entry of ``kind`` at :meth:`prune` (the whole PDF came from the cache:
@@ -324,7 +345,7 @@ class BuildCache:
 
     def prune(self) -> None:
         """Remove the entries this build did not use: the cache holds one build's worth."""
-        for kind in ("blocks", "sheets", "pdf", "parts"):
+        for kind in ("blocks", "printed", "sheets", "pdf", "parts"):
             if kind in self.kept:
                 continue
             folder = self.folder / kind

@@ -224,7 +224,7 @@ class _Stored:
         from calcdoc.render.memo import data_digest
         self.store = store
         self.library = data_digest(project.materials, project.named)
-        self.keys: dict[str, str | None] = {}
+        self.keys: dict[str, str | None] = store.block_keys
         self.restored: list[str] = store.restored_blocks
         self.computed: list[str] = store.computed_blocks
 

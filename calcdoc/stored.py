@@ -19,13 +19,14 @@ import numpy as np
 from calcdoc.data import Axis, Band, Box, Contours, FigureData, Line, Mark, Phrase, Point, Step, Value
 from calcdoc.kinds.base import BlockOutput, ResultSpec, ResultValue, Series
 from calcdoc.references import Cite
+from calcdoc.render.printed import Printed, PrintedStep
 
-__all__ = ["encode_output", "restore_output", "Unstorable"]
+__all__ = ["encode_output", "restore_output", "encode_printed", "restore_printed", "Unstorable"]
 
 FORMAT = 1
 _CLASSES = {cls.__name__: cls for cls in (Value, Phrase, Step, Axis, Line, Band, Box, Mark, Point,
                                           Contours, FigureData, Series, ResultSpec, ResultValue,
-                                          Cite)}
+                                          Cite, Printed, PrintedStep)}
 _NUMERIC = "biuf"  # NumPy dtype kinds kept: bool, signed, unsigned, float
 
 
@@ -57,8 +58,10 @@ def _encode(obj):
     if isinstance(obj, np.generic) and obj.dtype.kind in _NUMERIC:
         return {"$": "np", "dtype": obj.dtype.str, "v": _encode(obj.item())}
     if isinstance(obj, np.ndarray) and obj.dtype.kind in _NUMERIC:
-        return {"$": "nd", "dtype": obj.dtype.str, "shape": list(obj.shape),
-                "v": [_encode(v) for v in obj.ravel().tolist()]}
+        flat = obj.ravel().tolist()
+        if obj.dtype.kind == "f" and not np.isfinite(obj).all():
+            flat = [_encode(v) for v in flat]  # NaN and ±inf tagged
+        return {"$": "nd", "dtype": obj.dtype.str, "shape": list(obj.shape), "v": flat}
     raise Unstorable(f"no stored form for {kind.__name__}")
 
 
@@ -87,7 +90,10 @@ def _decode(obj):
     if tag == "nd":
         dtype = _dtype(obj["dtype"])
         shape = tuple(int(n) for n in _list(obj["shape"]))
-        return np.array([_decode(v) for v in _list(obj["v"])], dtype=dtype).reshape(shape)
+        flat = _list(obj["v"])
+        if not all(type(v) in (float, int, bool) for v in flat):
+            flat = [_decode(v) for v in flat]
+        return np.array(flat, dtype=dtype).reshape(shape)
     cls = _CLASSES.get(tag) if isinstance(tag, str) else None
     if cls is None or type(obj.get("f")) is not dict:
         raise Unstorable(f"unknown stored class {tag!r}")
@@ -177,3 +183,23 @@ def restore_output(out: BlockOutput, data) -> None:
             values["results"][name] = ResultValue(out._declared[name], result.value)
     for name in _WRITTEN:
         setattr(out, name, values[name])
+
+
+def encode_printed(steps: list) -> list | None:
+    """Return a block's steps as printed (:func:`calcdoc.render.printed.print_step`) as JSON
+    data, or None when one cannot be kept."""
+    try:
+        return _encode(list(steps))
+    except Unstorable:
+        return None
+
+
+def restore_printed(data) -> list:
+    """Return the printed steps :func:`encode_printed` kept; raise Unstorable otherwise."""
+    try:
+        steps = _decode(data)
+    except (KeyError, TypeError, ValueError, AttributeError) as exc:
+        raise Unstorable(str(exc)) from None
+    if type(steps) is not list or not all(type(s) is PrintedStep for s in steps):
+        raise Unstorable("not a list of printed steps")
+    return steps

@@ -98,10 +98,12 @@ def test_warm_rebuild_computes_only_the_changed_block_and_the_block_that_refers_
 def test_every_block_of_the_demo_is_kept_and_given_back_exactly():
     """What a block's compute wrote, through JSON and back, is the same data to the last bit
     (floats by their hex form, arrays by their bytes, each class by its name); only a block
-    handing on a solver object (the fire curve FC1 hands to the blocks it heats) is not kept."""
+    handing on a solver object (the fire curve FC1 hands to the blocks it heats) is not kept.
+    Its steps as printed come back equal too."""
     from calcdoc.evaluate import evaluate_folder
     from calcdoc.kinds.base import BlockOutput
-    from calcdoc.stored import _WRITTEN, encode_output, restore_output
+    from calcdoc.stored import (_WRITTEN, encode_output, encode_printed, restore_output,
+                                restore_printed)
     package = evaluate_folder(DEMO)
     not_kept = []
     for sheet in package.sheets:
@@ -121,6 +123,13 @@ def test_every_block_of_the_demo_is_kept_and_given_back_exactly():
             assert again.declared_results() == out.declared_results()
             assert all(a is b for a, b in zip(again.declared_results(), block.kind.results))
     assert not_kept == ["FC1.fire"]
+    # the steps as printed (kept beside each block) come back equal, field by field
+    sig, system = package.project.precision, package.project.units
+    for sheet in package.sheets:
+        for block in sheet.blocks:
+            printed = block.printed_steps(sig, system)
+            data = json.loads(json.dumps(encode_printed(printed), sort_keys=True))
+            assert restore_printed(data) == printed, block.spec.key
 
 
 def test_stored_form_reads_back_only_the_classes_it_knows():
