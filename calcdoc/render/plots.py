@@ -15,13 +15,7 @@ import io
 from contextlib import contextmanager
 from dataclasses import dataclass
 
-import matplotlib
 import numpy as np
-
-matplotlib.use("svg")
-from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
-from matplotlib.figure import Figure  # noqa: E402
-from matplotlib.patches import Rectangle  # noqa: E402
 
 __all__ = ["figure", "svg_of", "LINE_STYLES", "COLOURS", "HATCHES", "mark_vertical",
            "mark_horizontal", "thin", "PLOT_POINTS", "draw", "Drawn"]
@@ -65,9 +59,20 @@ _STYLE = {
 }
 
 
+def _matplotlib():
+    """Return matplotlib, set to draw SVG: imported on the first figure drawn (half a second),
+    not for a build whose figures all come from the cache, nor for ``check``."""
+    import matplotlib
+    matplotlib.use("svg")
+    return matplotlib
+
+
 @contextmanager
 def figure(key: str, width_mm: float = 160, height_mm: float = 80):
     """Yield a (fig, ax) pair drawn in the house style; ``key`` salts the SVG ids."""
+    matplotlib = _matplotlib()
+    from matplotlib.backends.backend_svg import FigureCanvasSVG
+    from matplotlib.figure import Figure
     with matplotlib.rc_context({**_STYLE, "svg.hashsalt": key}):
         fig = Figure(figsize=(width_mm / 25.4, height_mm / 25.4))
         FigureCanvasSVG(fig)  # the layout measures text as the SVG output will
@@ -202,7 +207,10 @@ def _legend_beside(fig, ax, handles, to_scale: bool) -> None:
 def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
     """Return a figure drawn from its data: bands and boxes first, then contours, curves, marks
     and points with their words, axes in the display units the data asks for."""
+    from matplotlib.patches import Rectangle
+
     from calcdoc.render.printed import fill
+    _matplotlib()
     ax_x, bx_x = _scale(data.x.unit, data.x.display)
     ax_y, bx_y = _scale(data.y.unit, data.y.display)
 
