@@ -42,10 +42,12 @@ def _encode(obj):
     if obj is None or kind in (str, int, bool):
         return obj
     if kind is list or kind is tuple:
-        if _finite_floats(obj):  # a curve: as it stands (the common case, thousands of points)
-            items = list(obj)
-        else:
+        if not all(type(v) is float for v in obj):
             items = [_encode(v) for v in obj]
+        elif _finite(obj):  # a curve: as it stands (the common case, thousands of points)
+            items = list(obj)
+        else:  # a field with cells outside the section (NaN): the words in their places
+            items = {"$": "floats", "v": [v if math.isfinite(v) else repr(v) for v in obj]}
         return items if kind is list else {"$": "tuple", "v": items}
     if kind is dict:
         return {"$": "dict", "v": [[_encode(k), _encode(v)] for k, v in obj.items()]}
@@ -80,8 +82,16 @@ def _decode(obj):
         if value not in ("nan", "inf", "-inf"):
             raise Unstorable(f"unexpected float {value!r}")
         return float(value)
+    if tag == "floats":
+        values = _list(obj["v"])
+        if not all(type(v) is float or v in ("nan", "inf", "-inf") for v in values):
+            raise Unstorable("a list of floats expected")
+        return [float(v) if type(v) is str else v for v in values]
     if tag == "tuple":
-        return tuple(_decode(_list(obj["v"])))
+        items = _decode(obj["v"])
+        if type(items) is not list:
+            raise Unstorable("a tuple's items expected")
+        return tuple(items)
     if tag == "dict":
         return {_decode(k): _decode(v) for k, v in (_pair(p) for p in _list(obj["v"]))}
     if tag == "np":
@@ -103,9 +113,8 @@ def _decode(obj):
     return cls(**{k: _decode(v) for k, v in obj["f"].items()})
 
 
-def _finite_floats(items) -> bool:
-    if not all(type(v) is float for v in items):
-        return False
+def _finite(items) -> bool:
+    """Whether every float of ``items`` is finite (one C-level sum, not a test per number)."""
     try:
         return math.isfinite(math.fsum(items))  # NaN or ±inf in it: each one tagged
     except (OverflowError, ValueError):  # past the largest float, or inf - inf

@@ -138,6 +138,8 @@ def test_stored_form_reads_back_only_the_classes_it_knows():
                    {"$": "Value", "f": {"si": 1.0}},  # fields missing
                    {"$": "nd", "dtype": "O", "shape": [1], "v": [1]},  # object array
                    {"$": "float", "v": "1e308"},
+                   {"$": "floats", "v": [1.0, "1e308"]},
+                   {"$": "tuple", "v": {"$": "dict", "v": []}},
                    {"plain": "mapping"}):
         with pytest.raises(Unstorable):
             _decode(forged)

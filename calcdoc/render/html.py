@@ -683,7 +683,9 @@ class Drawings:
                         wanted[digest] = (sheet.spec.id, data)
         if jobs < 2 or len(wanted) < 2:
             return 0
+        from calcdoc.render.plots import drawing_library
         from calcdoc.render.workers import pool
+        drawing_library()  # imported once here: forked workers start with it
         with pool(min(jobs, len(wanted))) as workers:
             drawn = workers.map(_draw_figure, [(data, self.sig, self.system)
                                                for _, data in wanted.values()])

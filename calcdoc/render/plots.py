@@ -59,7 +59,7 @@ _STYLE = {
 }
 
 
-def _matplotlib():
+def drawing_library():
     """Return matplotlib, set to draw SVG: imported on the first figure drawn (half a second),
     not for a build whose figures all come from the cache, nor for ``check``."""
     import matplotlib
@@ -70,7 +70,7 @@ def _matplotlib():
 @contextmanager
 def figure(key: str, width_mm: float = 160, height_mm: float = 80):
     """Yield a (fig, ax) pair drawn in the house style; ``key`` salts the SVG ids."""
-    matplotlib = _matplotlib()
+    matplotlib = drawing_library()
     from matplotlib.backends.backend_svg import FigureCanvasSVG
     from matplotlib.figure import Figure
     with matplotlib.rc_context({**_STYLE, "svg.hashsalt": key}):
@@ -210,7 +210,7 @@ def draw(data, sig: int = 3, system: str = "SI") -> Drawn:
     from matplotlib.patches import Rectangle
 
     from calcdoc.render.printed import fill
-    _matplotlib()
+    drawing_library()
     ax_x, bx_x = _scale(data.x.unit, data.x.display)
     ax_y, bx_y = _scale(data.y.unit, data.y.display)
 
