@@ -199,6 +199,7 @@ def _is_temperature(unit: pint.Unit) -> bool:
     return str(ureg.Quantity(1.0, _as_multiplicative(unit)).dimensionality) == "[temperature]"
 
 
+@lru_cache(maxsize=8192)  # a pure function of its texts; a package writes the same few often
 def parse_quantity_text(text: str, si_unit: str, temperature: str | None = None,
                         percent_required: bool = False) -> tuple[float, str]:
     """Return (value in ``si_unit``, the unit as written) for a quantity text.

@@ -85,7 +85,8 @@ def memoised(space: str, encode: Callable = lambda v: v, decode: Callable = lamb
     def wrap(fn):
         @functools.wraps(fn)
         def inner(*args):
-            key = json.dumps(args, ensure_ascii=False)
+            # strings and numbers: repr tells them apart (a Markup as the text it is)
+            key = repr(tuple(str(a) if isinstance(a, str) else a for a in args))
             return decode(MEMO.lookup(space, key, lambda: encode(fn(*args))))
         inner.uncached = fn
         return inner
