@@ -221,7 +221,7 @@ def _seed_printed(store: BuildCache, package: Package) -> dict[str, str]:
             if block_key is None:
                 continue
             key = keys[block.key] = store.printed_key(block_key, sig, system)
-            data = store.load_printed(key)
+            data = store.load_json("printed", key)
             if data is None:
                 continue
             try:
@@ -250,7 +250,7 @@ def _keep_printed(store: BuildCache, package: Package, keys: dict[str, str]) -> 
                 continue  # read from the cache this build: already there
             data = encode_printed(steps)
             if data is not None:
-                store.store_printed(key, data)
+                store.store_json("printed", key, data)
 
 
 def _write_error(out: Path, exc: OSError) -> InputErrors:

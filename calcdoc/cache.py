@@ -1,5 +1,6 @@
-"""The build cache: what a build typeset and drew for each sheet, and the PDF it made, kept in a
-folder beside the output folder so that the next build redoes only what changed.
+"""The build cache: what each block computed, what a build typeset and drew for each sheet, and the
+PDF it made, kept in a folder beside the output folder so that the next build redoes only what
+changed.
 
 Layout of ``<out>.cache/`` (beside ``<out>``, never inside it: the output folder is replaced
 whole by each build)::
@@ -18,8 +19,8 @@ version, its templates, the rendering code and the versions of the libraries tha
 draw. A PDF's key is the SHA-256 of the print document, the stylesheet, the attachments, the
 revision date and the salt. A block's key is the SHA-256 of the block as written, the values
 its inputs resolved to, the project's materials and named values, the keys of the blocks it
-refers to and the *evaluation salt*: every file of the calcdoc package and the versions of the libraries
-that compute.
+refers to and the *evaluation salt*: every file of the calcdoc package and the versions of the
+libraries that compute.
 
 Nothing is unpickled: every entry is JSON or bytes, carries its key, its salt, the SHA-256 of
 its content and a message authentication code (HMAC-SHA-256) made with this user's own secret
@@ -266,34 +267,23 @@ class BuildCache:
         self._write("sheets", key, ".json",
                     json.dumps(answers, ensure_ascii=False, sort_keys=True).encode("utf-8"))
 
-    def load_block(self, key: str):
-        """Return the JSON data a block's compute wrote (:func:`calcdoc.stored.restore_output`
-        checks its form), or None."""
-        content = self._read("blocks", key, ".json")
+    def load_json(self, kind: str, key: str):
+        """Return the JSON data of an entry (``blocks``: what a block's compute wrote, checked
+        by :func:`calcdoc.stored.restore_output`; ``printed``: its steps as printed), or None."""
+        content = self._read(kind, key, ".json")
         try:
             return json.loads(content) if content is not None else None
         except ValueError:
             return None
 
-    def store_block(self, key: str, data: dict) -> None:
-        self._write("blocks", key, ".json",
+    def store_json(self, kind: str, key: str, data) -> None:
+        self._write(kind, key, ".json",
                     json.dumps(data, ensure_ascii=False, sort_keys=True).encode("utf-8"))
 
     def printed_key(self, block_key: str, sig: int, system: str) -> str:
         """The key of a block's steps as printed: the block's key, the significant figures and
         the unit system, and the view's salt."""
         return data_digest(self.salt, block_key, sig, system)
-
-    def load_printed(self, key: str):
-        content = self._read("printed", key, ".json")
-        try:
-            return json.loads(content) if content is not None else None
-        except ValueError:
-            return None
-
-    def store_printed(self, key: str, data: list) -> None:
-        self._write("printed", key, ".json",
-                    json.dumps(data, ensure_ascii=False, sort_keys=True).encode("utf-8"))
 
     def load_pdf(self, key: str) -> bytes | None:
         return self._read("pdf", key, ".pdf")

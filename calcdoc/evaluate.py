@@ -240,7 +240,7 @@ class _Stored:
 
     def restore(self, key: str | None, out: BlockOutput) -> bool:
         from calcdoc.stored import Unstorable, restore_output
-        data = self.store.load_block(key) if key else None
+        data = self.store.load_json("blocks", key) if key else None
         if data is None:
             return False
         try:
@@ -253,7 +253,7 @@ class _Stored:
         from calcdoc.stored import encode_output
         data = encode_output(out) if key else None
         if data is not None:
-            self.store.store_block(key, data)
+            self.store.store_json("blocks", key, data)
 
 
 def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors, stored=None):

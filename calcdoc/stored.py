@@ -16,12 +16,14 @@ import math
 
 import numpy as np
 
-from calcdoc.data import Axis, Band, Box, Contours, FigureData, Line, Mark, Phrase, Point, Step, Value
+from calcdoc.data import (Axis, Band, Box, Contours, FigureData, Line, Mark, Phrase, Point, Step,
+                          Value)
 from calcdoc.kinds.base import BlockOutput, ResultSpec, ResultValue, Series
 from calcdoc.references import Cite
 from calcdoc.render.printed import Printed, PrintedStep
 
-__all__ = ["encode_output", "restore_output", "encode_printed", "restore_printed", "Unstorable"]
+__all__ = ["encode_output", "restore_output", "encode_printed", "restore_printed",
+           "Unstorable"]
 
 FORMAT = 1
 _CLASSES = {cls.__name__: cls for cls in (Value, Phrase, Step, Axis, Line, Band, Box, Mark, Point,

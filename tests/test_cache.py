@@ -173,13 +173,13 @@ def test_block_entry_not_written_by_this_users_calcdoc_is_ignored(tmp_path, monk
         forged = entry.stem
         break
     assert forged is not None
-    assert BuildCache(cache_folder(out)).load_block(forged) is None
+    assert BuildCache(cache_folder(out)).load_json("blocks", forged) is None
     report = build(root, out, pdf=False)
     assert files_of(out) == reference
     assert len(report.computed) == 1 and len(report.restored) == 2
     monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "someone-else"))
     other = BuildCache(cache_folder(out))
-    assert [other.load_block(p.stem) for p in entries] == [None, None, None]
+    assert [other.load_json("blocks", p.stem) for p in entries] == [None, None, None]
     report = build(root, out, pdf=False)
     assert files_of(out) == reference and report.restored == []
 
