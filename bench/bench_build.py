@@ -245,6 +245,10 @@ def ratios(demo: dict | None, scale: dict, full: dict) -> None:
         show(f"HTML time per sheet {b} / {a} sheets (flat: 1.0)",
              (scale[b]["html"] / b) / (scale[a]["html"] / a))
         show(f"HTML peak memory {b} / {a} sheets", scale[b]["peak_mb"] / scale[a]["peak_mb"])
+    if len(sizes) > 2:  # the smallest to the largest (the 200 / 50, at most 4.4)
+        a, b = sizes[0], sizes[-1]
+        show(f"HTML build {b} / {a} sheets (linear: {b / a:.1f})",
+             scale[b]["html"] / scale[a]["html"])
     fsizes = sorted(full)
     for a, b in zip(fsizes, fsizes[1:]):
         show(f"full build {b} / {a} sheets (linear: {b / a:.1f})", full[b]["full"] / full[a]["full"])
