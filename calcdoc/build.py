@@ -146,10 +146,11 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         results_text = dumps(results_document(package))
         (tmp / "results.json").write_text(results_text, encoding="utf-8")
         drawings = Drawings(project.precision, project.units)
-        if jobs > 1:
-            current().show(f"site: drawing the figures on {jobs} processes", force=True)
-            drawings.predraw(package, jobs)
-        render_site(package_view(package, "site", drawings, changes), tmp)
+        with drawings.drawing_ahead(package, jobs) as ahead:
+            if ahead:
+                current().show(f"site: drawing {ahead} figures on {jobs} processes while the "
+                               "sheets are typeset", force=True)
+            render_site(package_view(package, "site", drawings, changes), tmp)
         timings["html"] = time.perf_counter() - t
         if pdf:
             t = time.perf_counter()

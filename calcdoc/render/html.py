@@ -17,6 +17,7 @@ import base64
 import dataclasses
 import functools
 import re
+from contextlib import contextmanager
 from pathlib import Path
 
 import jinja2
@@ -650,6 +651,7 @@ class Drawings:
         self.drawn: dict[str, list] = {}
         self.printed: dict[str, list] = {}
         self._digests: dict[int, tuple] = {}  # id(data) → (data, digest): worked out once
+        self._pending: dict[str, tuple] = {}  # digest → (sheet, future): being drawn ahead
 
     def __call__(self, block) -> list:
         if block.key not in self.drawn:
@@ -666,13 +668,18 @@ class Drawings:
         digest = self._digest(data)
         if digest is None:  # data of a shape the digest does not know: drawn every time
             return draw(data, self.sig, self.system)
+        if digest in self._pending:
+            self._collect(digest)
         return Drawn(**MEMO.lookup("figure", digest, lambda: dataclasses.asdict(
             draw(data, self.sig, self.system))))
 
-    def predraw(self, package, jobs: int) -> int:
-        """Draw every figure of the package not yet in the memo on ``jobs`` processes, before
-        the views ask for them (each is then found, drawn as the one process would have drawn
-        it: the same function of the same data); return how many were drawn."""
+    @contextmanager
+    def drawing_ahead(self, package, jobs: int):
+        """Draw every figure of the package not yet in the memo on ``jobs`` processes while
+        this one goes on (typesetting the views); a view that asks for a figure still being
+        drawn waits for it. Each is drawn as this process would have drawn it (the same
+        function of the same data). On leaving, every figure is in the memo. Yields how many
+        figures are drawn ahead (none with one job or fewer than two to draw)."""
         wanted: dict[str, tuple] = {}
         table = MEMO.tables.setdefault("figure", {})
         for sheet in package.sheets:
@@ -682,17 +689,29 @@ class Drawings:
                     if digest is not None and digest not in table and digest not in wanted:
                         wanted[digest] = (sheet.spec.id, data)
         if jobs < 2 or len(wanted) < 2:
-            return 0
+            yield 0
+            return
         from calcdoc.render.plots import drawing_library
         from calcdoc.render.workers import pool
         drawing_library()  # imported once here: forked workers start with it
         with pool(min(jobs, len(wanted))) as workers:
-            drawn = workers.map(_draw_figure, [(data, self.sig, self.system)
-                                               for _, data in wanted.values()])
-            for (digest, (sheet_id, _)), answer in zip(wanted.items(), drawn):
-                table[digest] = answer
-                MEMO.computed[sheet_id] = MEMO.computed.get(sheet_id, 0) + 1
-        return len(wanted)
+            self._pending = {digest: (sheet_id, workers.submit(
+                _draw_figure, (data, self.sig, self.system)))
+                for digest, (sheet_id, data) in wanted.items()}
+            try:
+                yield len(wanted)
+                for digest in list(self._pending):  # those no view asked for
+                    self._collect(digest)
+            finally:
+                for _, future in self._pending.values():
+                    future.cancel()
+                self._pending = {}
+
+    def _collect(self, digest: str) -> None:
+        """Put a figure drawn ahead into the memo, waiting for it if need be."""
+        sheet_id, future = self._pending.pop(digest)
+        MEMO.tables.setdefault("figure", {})[digest] = future.result()
+        MEMO.computed[sheet_id] = MEMO.computed.get(sheet_id, 0) + 1
 
     def steps(self, block) -> list:
         """The block's steps with their numbers printed, made once for the site and the PDF."""
@@ -702,7 +721,8 @@ class Drawings:
 
 
 def _draw_figure(task: tuple) -> dict:
-    """Draw one figure in a worker process (:meth:`Drawings.predraw`); its memo answer."""
+    """Draw one figure in a worker process (:meth:`Drawings.drawing_ahead`); its memo
+    answer."""
     data, sig, system = task
     return dataclasses.asdict(draw(data, sig, system))
 
