@@ -211,47 +211,38 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
 
 
 def _seed_printed(store: BuildCache, package: Package) -> dict[str, str]:
-    """Give each block whose compute the cache gave back its steps as printed, when the cache
-    has them; return the printed key of every block that has a key, for :func:`_keep_printed`."""
+    """Give each block that has a key its steps as printed, when the cache has them; return the
+    printed key of each block that has a key and was not given them, for :func:`_keep_printed`."""
     from calcdoc.stored import Unstorable, restore_printed
     sig, system = package.project.precision, package.project.units
-    keys = {}
+    missing = {}
     for sheet in package.sheets:
         for block in sheet.blocks:
             block_key = store.block_keys.get(block.key)
             if block_key is None:
                 continue
-            key = keys[block.key] = store.printed_key(block_key, sig, system)
-            data = store.load_json("printed", key)
-            if data is None:
-                continue
+            key = store.printed_key(block_key, sig, system)
             try:
-                steps = restore_printed(data)
-            except Unstorable:
-                continue
-            if len(steps) == len(block.output.steps):
+                steps = restore_printed(store.load_json("printed", key))
+            except Unstorable:  # missing (None) or not of that form
+                steps = None
+            if steps is not None and len(steps) == len(block.output.steps):
                 block.__dict__.setdefault("_printed", {})[sig, system] = steps
-    return keys
+            else:
+                missing[block.key] = key
+    return missing
 
 
-def _keep_printed(store: BuildCache, package: Package, keys: dict[str, str]) -> None:
-    """Keep the steps as printed of each block that has a key (written anew only when the
-    cache did not give them)."""
+def _keep_printed(store: BuildCache, package: Package, missing: dict[str, str]) -> None:
+    """Keep the steps as printed of each block the cache did not give them to."""
     from calcdoc.stored import encode_printed
     sig, system = package.project.precision, package.project.units
     for sheet in package.sheets:
         for block in sheet.blocks:
-            key = keys.get(block.key)
-            if key is None:
-                continue
             steps = block.__dict__.get("_printed", {}).get((sig, system))
-            if steps is None:
-                continue
-            if store.used_entry("printed", key, ".json"):
-                continue  # read from the cache this build: already there
-            data = encode_printed(steps)
+            data = encode_printed(steps) if block.key in missing and steps is not None else None
             if data is not None:
-                store.store_json("printed", key, data)
+                store.store_json("printed", missing[block.key], data)
 
 
 def _write_error(out: Path, exc: OSError) -> InputErrors:

@@ -251,25 +251,19 @@ class BuildCache:
             pass  # a cache that cannot be written costs the next build time, nothing else
 
     def load_sheet(self, key: str) -> dict | None:
-        content = self._read("sheets", key, ".json")
-        if content is None:
-            return None
-        try:
-            answers = json.loads(content)
-        except ValueError:
-            return None
+        answers = self.load_json("sheets", key)
         if not isinstance(answers, dict) or not all(
                 isinstance(v, dict) for v in answers.values()):
             return None
         return answers
 
     def store_sheet(self, key: str, answers: dict) -> None:
-        self._write("sheets", key, ".json",
-                    json.dumps(answers, ensure_ascii=False, sort_keys=True).encode("utf-8"))
+        self.store_json("sheets", key, answers)
 
     def load_json(self, kind: str, key: str):
-        """Return the JSON data of an entry (``blocks``: what a block's compute wrote, checked
-        by :func:`calcdoc.stored.restore_output`; ``printed``: its steps as printed), or None."""
+        """Return the JSON data of an entry, or None; the caller checks its shape (``blocks``:
+        what a block's compute wrote, by :func:`calcdoc.stored.restore_output`; ``printed``:
+        its steps as printed, by :func:`calcdoc.stored.restore_printed`)."""
         content = self._read(kind, key, ".json")
         try:
             return json.loads(content) if content is not None else None
@@ -293,23 +287,12 @@ class BuildCache:
 
     def load_part(self, key: str) -> tuple[dict, bytes] | None:
         """Return a part's layout (JSON data; the caller checks its shape) and its PDF."""
-        layout, pdf = self._read("parts", key, ".json"), self._read("parts", key, ".pdf")
-        if layout is None or pdf is None:
-            return None
-        try:
-            data = json.loads(layout)
-        except ValueError:
-            return None
-        return (data, pdf) if isinstance(data, dict) else None
+        data, pdf = self.load_json("parts", key), self._read("parts", key, ".pdf")
+        return (data, pdf) if isinstance(data, dict) and pdf is not None else None
 
     def store_part(self, key: str, layout: dict, pdf: bytes) -> None:
         self._write("parts", key, ".pdf", pdf)
-        self._write("parts", key, ".json",
-                    json.dumps(layout, ensure_ascii=False, sort_keys=True).encode("utf-8"))
-
-    def used_entry(self, kind: str, key: str, suffix: str) -> bool:
-        """Whether this build read or wrote that entry."""
-        return self._path(kind, key, suffix) in self.used
+        self.store_json("parts", key, layout)
 
     def keep(self, kind: str) -> None:
         """Keep every entry of ``kind`` at :meth:`prune` (the whole PDF came from the cache:
@@ -320,18 +303,13 @@ class BuildCache:
 
     def page_guess(self) -> dict[str, int] | None:
         """Return the page of each anchor in the last PDF typeset in parts, or None."""
-        content = self._read("parts", self._GUESS, ".json")
-        try:
-            data = json.loads(content) if content is not None else None
-        except ValueError:
-            return None
+        data = self.load_json("parts", self._GUESS)
         ok = isinstance(data, dict) and all(
             isinstance(k, str) and type(v) is int and v > 0 for k, v in data.items())
         return data if ok else None
 
     def store_page_guess(self, page_of: dict[str, int]) -> None:
-        self._write("parts", self._GUESS, ".json",
-                    json.dumps(page_of, ensure_ascii=False, sort_keys=True).encode("utf-8"))
+        self.store_json("parts", self._GUESS, page_of)
 
     def prune(self) -> None:
         """Remove the entries this build did not use: the cache holds one build's worth."""

@@ -19,8 +19,8 @@ from __future__ import annotations
 import dataclasses
 import functools
 import hashlib
-from array import array as _doubles
 import json
+from array import array as _doubles
 from contextlib import contextmanager
 from typing import Any, Callable
 
