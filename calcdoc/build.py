@@ -195,7 +195,9 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
-    if store is not None:
+    if store is not None:  # the build succeeded: what it made is kept for the next
+        for key, data in store.pending_blocks.items():
+            store.store_json("blocks", key, data)
         _keep_printed(store, package, printed)
         for sheet_id, key in sheet_keys.items():
             if MEMO.used.get(sheet_id, {}) != (loaded.get(sheet_id) or {}):

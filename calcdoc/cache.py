@@ -100,9 +100,10 @@ def secret_file() -> Path:
     return Path(base) / "calcdoc" / "cache-secret"
 
 
-def _secret() -> bytes | None:
-    """Return this user's secret for the cache's authentication codes, made on first use
-    (mode 0600); None when it can be neither read nor made (the cache is then not used)."""
+def _secret(make: bool) -> bytes | None:
+    """Return this user's secret for the cache's authentication codes; ``make`` makes it when
+    there is none (mode 0600: the first build that writes the cache). None when it can be
+    neither read nor made (the cache is then not used)."""
     path = secret_file()
     try:
         data = path.read_bytes()
@@ -110,6 +111,8 @@ def _secret() -> bytes | None:
             return data
     except OSError:
         pass
+    if not make:
+        return None
     try:
         path.parent.mkdir(parents=True, exist_ok=True, mode=0o700)
         fd, tmp = tempfile.mkstemp(prefix=".secret-", dir=path.parent)
@@ -137,7 +140,8 @@ class BuildCache:
     def __init__(self, folder: Path):
         self.folder = Path(folder)
         self.salt = salt()
-        self.secret = _secret()
+        self.secret = _secret(make=False)  # made by the first write, not by a failed build
+        self.pending_blocks: dict[str, dict] = {}  # block entries to write if the build succeeds
         self.restored_blocks: list[str] = []  # blocks whose compute the cache gave back
         self.block_keys: dict[str, str | None] = {}  # block → its key, as evaluation made it
         self.computed_blocks: list[str] = []  # blocks computed (then kept where they could be)
@@ -234,6 +238,8 @@ class BuildCache:
         return content
 
     def _write(self, kind: str, key: str, suffix: str, content: bytes) -> None:
+        if self.secret is None:
+            self.secret = _secret(make=True)
         if self.secret is None:
             return
         path = self._path(kind, key, suffix)

@@ -252,8 +252,8 @@ class _Stored:
     def keep(self, key: str | None, out: BlockOutput) -> None:
         from calcdoc.stored import encode_output
         data = encode_output(out) if key else None
-        if data is not None:
-            self.store.store_json("blocks", key, data)
+        if data is not None:  # written when the whole build has succeeded (calcdoc.build)
+            self.store.pending_blocks[key] = data
 
 
 def _evaluate_block(spec: BlockSpec, project: Project, done, failed, errors, stored=None):

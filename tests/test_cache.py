@@ -184,6 +184,24 @@ def test_block_entry_not_written_by_this_users_calcdoc_is_ignored(tmp_path, monk
     assert files_of(out) == reference and report.restored == []
 
 
+def test_bad_input_writes_no_cache_and_no_secret(tmp_path, monkeypatch):
+    """Bad input: exit 2 and nothing written (the brief's rule for every command), the cache
+    beside the output and the user's secret included, though some blocks evaluated before the
+    bad one was found."""
+    from calcdoc.cache import secret_file
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "fresh-user"))
+    root = small_project(tmp_path / "proj")
+    path = root / "sheets" / "heat-gains.yaml"
+    path.write_text(path.read_text(encoding="utf-8") + "  - [unclosed\n", encoding="utf-8")
+    out = tmp_path / "out"
+    assert main(["build", str(root), "--out", str(out), "--no-pdf"]) == 2
+    assert not out.exists() and not cache_folder(out).exists()
+    assert not secret_file().exists()
+    shutil.copy(DEMO / "sheets" / "heat-gains.yaml", path)
+    assert main(["build", str(root), "--out", str(out), "--no-pdf"]) == 0
+    assert secret_file().is_file() and (cache_folder(out) / "blocks").is_dir()
+
+
 def test_final_build_computes_every_block_whatever_the_cache_holds(tmp_path, monkeypatch):
     import calcdoc.build as building
     from calcdoc.errors import FinalRefused
