@@ -19,7 +19,6 @@ from dataclasses import dataclass
 
 import numpy as np
 from scipy.constants import zero_Celsius
-from scipy.optimize import brentq
 
 from calcdoc.data import ABSOLUTE, DIFFERENCE, Value, phrase
 from calcdoc.errors import InputError
@@ -30,6 +29,7 @@ from calcdoc.physics import PhysicsRangeError
 from calcdoc.physics.insulation import (SIZING_BRACKET, ConductivityCurve,
                                         cylindrical_layers_with_curves, mean_conductivity,
                                         size_layer)
+from calcdoc.physics.solvers import brentq
 from calcdoc.references import Cite
 
 __all__ = ["ConductivityCurveField", "InsulationMaterial", "LayerName", "LayerCurve",

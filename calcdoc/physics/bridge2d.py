@@ -42,13 +42,9 @@ from dataclasses import dataclass
 from typing import Sequence
 
 import numpy as np
-from scipy import sparse
-from scipy.integrate import cumulative_trapezoid
-from scipy.interpolate import RegularGridInterpolator
-from scipy.sparse.csgraph import connected_components
-from scipy.sparse.linalg import splu
 
 from calcdoc.physics import PhysicsRangeError
+from calcdoc.physics.solvers import cumulative_trapezoid
 
 __all__ = [
     "DEFAULT_TOLERANCE", "DEFAULT_F_RSI_TOLERANCE", "DEFAULT_CONDENSATION_SURFACE_RESISTANCE",
@@ -447,6 +443,9 @@ def _require_one_piece(blocks: np.ndarray) -> None:
     rows = np.concatenate((number[:, :-1][across], number[:-1][upward]))
     cols = np.concatenate((number[:, 1:][across], number[1:][upward]))
     n = int(body.sum())
+    from scipy import sparse  # scipy's sparse modules load when a section is solved
+    from scipy.sparse.csgraph import connected_components
+
     graph = sparse.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
     pieces, label = connected_components(graph, directed=False)
     if pieces > 1:
@@ -484,6 +483,8 @@ class TemperatureField:
     def at(self, x, y) -> np.ndarray | float:
         """Return the temperature [K] at points (x, y) [m], bilinear between nodes (NaN off the
         body)."""
+        from scipy.interpolate import RegularGridInterpolator
+
         interpolate = RegularGridInterpolator((self.y_nodes, self.x_nodes), self.node_temperature,
                                               bounds_error=False, fill_value=np.nan)
         y, x = np.broadcast_arrays(np.asarray(y, float), np.asarray(x, float))
@@ -719,6 +720,9 @@ def solve_section(section: Section, mesh: Mesh, inside_temperature: float,
     rows = np.concatenate((a_x, b_x, a_y, b_y, np.arange(n)))
     cols = np.concatenate((b_x, a_x, b_y, a_y, np.arange(n)))
     data = np.concatenate((-g_x, -g_x, -g_y, -g_y, diagonal))
+    from scipy import sparse
+    from scipy.sparse.linalg import splu
+
     matrix = sparse.csc_matrix((data, (rows, cols)), shape=(n, n))
     rhs = np.bincount(faces["cell"], g_f * environment, n)
     tau = splu(matrix, permc_spec="MMD_AT_PLUS_A").solve(rhs)

@@ -17,10 +17,10 @@ from typing import Callable, NamedTuple, Sequence
 import numpy as np
 from numpy.typing import ArrayLike
 from scipy import constants
-from scipy.optimize import brentq
 
 from calcdoc.physics import PhysicsRangeError
 from calcdoc.physics.air import AIR_TABLE_RANGE, AIR_TABLE_SOURCE, AirProperties, air_properties
+from calcdoc.physics.solvers import brentq
 
 __all__ = [
     "SURFACE_RESISTANCE_SOURCE",

@@ -16,9 +16,9 @@ from typing import NamedTuple
 
 import numpy as np
 from numpy.typing import ArrayLike
-from scipy.optimize import brentq, minimize, minimize_scalar
 
 from calcdoc.physics import PhysicsRangeError
+from calcdoc.physics.solvers import brentq, minimize, minimize_scalar
 
 __all__ = [
     "Emitter",

@@ -25,7 +25,6 @@ from typing import NamedTuple, Sequence
 
 import numpy as np
 from numpy.typing import ArrayLike
-from scipy.optimize import brentq
 
 from calcdoc.physics import PhysicsRangeError
 from calcdoc.physics.conduction import (
@@ -37,6 +36,7 @@ from calcdoc.physics.conduction import (
     pipe_in_still_air,
     radiation_coefficient,
 )
+from calcdoc.physics.solvers import brentq
 
 __all__ = [
     "ConductivityCurve",

@@ -16,9 +16,8 @@ from __future__ import annotations
 import math
 from typing import NamedTuple
 
-from scipy.optimize import brentq
-
 from calcdoc.physics import PhysicsRangeError
+from calcdoc.physics.solvers import brentq
 
 __all__ = [
     "TimberFireProperties",

@@ -46,10 +46,9 @@ from typing import Callable, Sequence
 
 import numpy as np
 from scipy.constants import Stefan_Boltzmann as SIGMA
-from scipy.integrate import cumulative_trapezoid
-from scipy.linalg.lapack import dgtsv
 
 from calcdoc.physics import MAX_CELL_STEPS, MAX_CELLS, MAX_TIME_STEPS, PhysicsRangeError
+from calcdoc.physics.solvers import cumulative_trapezoid, dgtsv
 from calcdoc.physics.thermal_laws import ThermalLaw, constant_law
 
 __all__ = [

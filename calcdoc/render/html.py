@@ -909,18 +909,32 @@ def render_site(view: dict, out_dir: Path) -> list[Path]:
     css = out_dir / "assets" / "style.css"
     css.write_text((TEMPLATES / "style.css").read_text(encoding="utf-8"), encoding="utf-8")
     written.append(css)
+    # every page lists every sheet in its sidebar: each entry is written once, not once a page
+    nav_item = env.get_template("_nav.html").module.nav_item
+    entries = [str(nav_item(s, False)) for s in view["sheets"]]
     index = out_dir / "index.html"
-    index.write_text(env.get_template("index.html").render(view=view, page="index.html"),
-                     encoding="utf-8")
+    index.write_text(env.get_template("index.html").render(
+        view=view, page="index.html", nav=_nav(entries, None, view["sheets"])),
+        encoding="utf-8")
     written.append(index)
     template = env.get_template("sheet.html")
     for sheet in view["sheets"]:
         _progress.current().show(f"site: writing {sheet['page']}")
         path = out_dir / sheet["page"]
-        path.write_text(template.render(view=view, sheet=sheet, page=sheet["page"]),
+        path.write_text(template.render(view=view, sheet=sheet, page=sheet["page"],
+                                        nav=_nav(entries, sheet["index"], view["sheets"])),
                         encoding="utf-8")
         written.append(path)
     return written
+
+
+def _nav(entries: list[str], current: int | None, sheets: list[dict]) -> dict:
+    """The sidebar's sheet entries of one page: those before and after its own, and its own
+    (drawn with its blocks by the template)."""
+    if current is None:
+        return {"before": Markup("".join(entries)), "current": None, "after": Markup("")}
+    return {"before": Markup("".join(entries[:current])), "current": sheets[current],
+            "after": Markup("".join(entries[current + 1:]))}
 
 
 def render_package_html(view: dict, part: dict | None = None,
