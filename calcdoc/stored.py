@@ -2,8 +2,9 @@
 
 A :class:`~calcdoc.kinds.base.BlockOutput` is data only (results, steps, statements, notes,
 warnings, series and figures, :mod:`calcdoc.data`), so it can be kept as JSON and given back
-exactly: floats by their shortest repr (which reads back to the same bits), tuples, dicts,
-NumPy numbers and arrays tagged as what they were, each dataclass by its name from a closed
+exactly: floats by their shortest repr (which reads back to the same bits), a long list of
+floats (a curve, a field) and a NumPy array by their bytes in base64 (little-endian), tuples,
+dicts and NumPy numbers tagged as what they were, each dataclass by its name from a closed
 list. Anything else (a series carrying a solver's object, a fire curve handed on to the blocks
 that refer to it) cannot be kept: :func:`encode_output` returns None and the block is simply
 computed on every build. Nothing is unpickled; a name outside the list is refused on reading.
@@ -11,8 +12,12 @@ computed on every build. Nothing is unpickled; a name outside the list is refuse
 
 from __future__ import annotations
 
+import base64
+import binascii
 import dataclasses
 import math
+import sys
+from array import array
 
 import numpy as np
 
@@ -25,11 +30,16 @@ from calcdoc.render.printed import Printed, PrintedStep
 __all__ = ["encode_output", "restore_output", "encode_printed", "restore_printed",
            "Unstorable"]
 
-FORMAT = 1
+FORMAT = 2
 _CLASSES = {cls.__name__: cls for cls in (Value, Phrase, Step, Axis, Line, Band, Box, Mark, Point,
                                           Contours, FigureData, Series, ResultSpec, ResultValue,
                                           Cite, Printed, PrintedStep)}
+_FIELDS = {name: frozenset(f.name for f in dataclasses.fields(cls))
+           for name, cls in _CLASSES.items()}
 _NUMERIC = "biuf"  # NumPy dtype kinds kept: bool, signed, unsigned, float
+# A list of more floats than this is kept as its bytes: a thousand-point curve reads back in
+# microseconds instead of a thousand numbers parsed (a 2-D field is hundreds of thousands)
+_PACKED = 16
 
 
 class Unstorable(ValueError):
@@ -46,9 +56,11 @@ def _encode(obj):
     if kind is list or kind is tuple:
         if not all(type(v) is float for v in obj):
             items = [_encode(v) for v in obj]
-        elif _finite(obj):  # a curve: as it stands (the common case, thousands of points)
+        elif len(obj) > _PACKED:  # a curve or a field (NaN outside a section): its bytes
+            items = {"$": "f8", "v": _pack(array("d", obj))}
+        elif _finite(obj):
             items = list(obj)
-        else:  # a field with cells outside the section (NaN): the words in their places
+        else:  # NaN or ±inf among a few numbers: the words in their places
             items = {"$": "floats", "v": [v if math.isfinite(v) else repr(v) for v in obj]}
         return items if kind is list else {"$": "tuple", "v": items}
     if kind is dict:
@@ -62,20 +74,23 @@ def _encode(obj):
     if isinstance(obj, np.generic) and obj.dtype.kind in _NUMERIC:
         return {"$": "np", "dtype": obj.dtype.str, "v": _encode(obj.item())}
     if isinstance(obj, np.ndarray) and obj.dtype.kind in _NUMERIC:
-        flat = obj.ravel().tolist()
-        if obj.dtype.kind == "f" and not np.isfinite(obj).all():
-            flat = [_encode(v) for v in flat]  # NaN and ±inf tagged
-        return {"$": "nd", "dtype": obj.dtype.str, "shape": list(obj.shape), "v": flat}
+        dtype = obj.dtype.newbyteorder("<") if obj.dtype.itemsize > 1 else obj.dtype
+        data = np.ascontiguousarray(obj, dtype=dtype).tobytes()
+        return {"$": "nd", "dtype": dtype.str, "shape": list(obj.shape),
+                "b": base64.b64encode(data).decode("ascii")}
     raise Unstorable(f"no stored form for {kind.__name__}")
 
 
+_LEAVES = frozenset((str, int, float, bool, type(None)))  # as JSON gives them, kept as they are
+
+
 def _decode(obj):
-    if obj is None or type(obj) in (str, int, float, bool):
+    if type(obj) in _LEAVES:
         return obj
     if type(obj) is list:
         if all(type(v) is float for v in obj):  # a curve; json gives floats only for floats
             return obj
-        return [_decode(v) for v in obj]
+        return [v if type(v) in _LEAVES else _decode(v) for v in obj]
     if type(obj) is not dict:
         raise Unstorable(f"unexpected {type(obj).__name__}")
     tag = obj.get("$")
@@ -84,6 +99,8 @@ def _decode(obj):
         if value not in ("nan", "inf", "-inf"):
             raise Unstorable(f"unexpected float {value!r}")
         return float(value)
+    if tag == "f8":
+        return _unpack(obj["v"]).tolist()
     if tag == "floats":
         values = _list(obj["v"])
         if not all(type(v) is float or v in ("nan", "inf", "-inf") for v in values):
@@ -101,18 +118,22 @@ def _decode(obj):
         return dtype.type(_decode(obj["v"]))
     if tag == "nd":
         dtype = _dtype(obj["dtype"])
-        shape = tuple(int(n) for n in _list(obj["shape"]))
-        flat = _list(obj["v"])
-        if not all(type(v) in (float, int, bool) for v in flat):
-            flat = [_decode(v) for v in flat]
-        return np.array(flat, dtype=dtype).reshape(shape)
+        shape = _list(obj["shape"])
+        if not all(type(n) is int and n >= 0 for n in shape):
+            raise Unstorable("an array's shape expected")
+        data = _bytes(obj["b"])
+        if len(data) != math.prod(shape) * dtype.itemsize:
+            raise Unstorable("an array's bytes do not fill its shape")
+        if dtype.kind == "b" and data.strip(b"\x00\x01"):
+            raise Unstorable("booleans other than 0 and 1")
+        return np.frombuffer(data, dtype=dtype).reshape(shape).astype(dtype.newbyteorder("="))
     cls = _CLASSES.get(tag) if isinstance(tag, str) else None
-    if cls is None or type(obj.get("f")) is not dict:
+    fields = obj.get("f")
+    if cls is None or type(fields) is not dict:
         raise Unstorable(f"unknown stored class {tag!r}")
-    names = {f.name for f in dataclasses.fields(cls)}
-    if set(obj["f"]) != names:
-        raise Unstorable(f"{tag}: fields {sorted(obj['f'])}, not {sorted(names)}")
-    return cls(**{k: _decode(v) for k, v in obj["f"].items()})
+    if fields.keys() != _FIELDS[tag]:
+        raise Unstorable(f"{tag}: fields {sorted(fields)}, not {sorted(_FIELDS[tag])}")
+    return cls(**{k: v if type(v) in _LEAVES else _decode(v) for k, v in fields.items()})
 
 
 def _finite(items) -> bool:
@@ -121,6 +142,33 @@ def _finite(items) -> bool:
         return math.isfinite(math.fsum(items))  # NaN or ±inf in it: each one tagged
     except (OverflowError, ValueError):  # past the largest float, or inf - inf
         return all(math.isfinite(v) for v in items)
+
+
+def _pack(values: array) -> str:
+    """Floats as base64 of their IEEE 754 doubles, little-endian."""
+    if sys.byteorder != "little":
+        values.byteswap()
+    return base64.b64encode(values.tobytes()).decode("ascii")
+
+
+def _unpack(text) -> array:
+    data = _bytes(text)
+    if len(data) % 8:
+        raise Unstorable("whole doubles expected")
+    values = array("d")
+    values.frombytes(data)
+    if sys.byteorder != "little":
+        values.byteswap()
+    return values
+
+
+def _bytes(text) -> bytes:
+    if type(text) is not str:
+        raise Unstorable("base64 text expected")
+    try:
+        return base64.b64decode(text, validate=True)
+    except (binascii.Error, ValueError):
+        raise Unstorable("base64 text expected") from None
 
 
 def _list(value) -> list:

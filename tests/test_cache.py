@@ -136,7 +136,11 @@ def test_stored_form_reads_back_only_the_classes_it_knows():
     from calcdoc.stored import Unstorable, _decode
     for forged in ({"$": "Popen", "f": {"args": "rm -rf /"}},
                    {"$": "Value", "f": {"si": 1.0}},  # fields missing
-                   {"$": "nd", "dtype": "O", "shape": [1], "v": [1]},  # object array
+                   {"$": "nd", "dtype": "O", "shape": [1], "b": "AA=="},  # object array
+                   {"$": "nd", "dtype": "<f8", "shape": [2], "b": "AAAAAAAAAAA="},  # 1 of 2
+                   {"$": "nd", "dtype": "|b1", "shape": [1], "b": "Ag=="},  # a boolean 2
+                   {"$": "f8", "v": "AAAA"},  # 3 bytes, not whole doubles
+                   {"$": "f8", "v": "not base64!"},
                    {"$": "float", "v": "1e308"},
                    {"$": "floats", "v": [1.0, "1e308"]},
                    {"$": "tuple", "v": {"$": "dict", "v": []}},

@@ -514,6 +514,8 @@ def _inputs_view(rows: list[dict], block_key: str, shared: dict, kind=None) -> d
 
 def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: int,
                 system: str, figures, shared: dict) -> dict:
+    """Return one block as view data; its figures as SVG text on the site (``links`` to site
+    pages), as images in the PDF."""
     out = block.output
     key = block.key
     # Citations are numbered in reading order: method, inputs, assumptions, steps, warnings, checks.
@@ -583,8 +585,10 @@ def _block_view(block, cites: Citations, math, comments_on, links: _Links, sig: 
                        "block_title": block.spec.title, "sheet": block.spec.sheet_id})
     block_figures, law_figures = [], []
     for fig in drawn:
-        item = {"key": fig.key, "caption": fig.caption, "svg": Markup(fig.svg),
-                "img": _svg_data_img(fig.svg, fig.caption), "block": key,
+        site = links.target == "site"  # only the form the target prints is made
+        item = {"key": fig.key, "caption": fig.caption,
+                "svg": Markup(fig.svg) if site else None,
+                "img": None if site else _svg_data_img(fig.svg, fig.caption), "block": key,
                 "block_href": links.anchor(key), "half": fig.half}
         # Material-law plots belong to the materials appendix, not to the block.
         (law_figures if fig.appendix else block_figures).append(item)
