@@ -30,7 +30,7 @@ from calcdoc.project import read_project
 from calcdoc.render import status
 from calcdoc.render.html import (Drawings, package_view, render_package_html,
                                  render_site)
-from calcdoc.render.memo import MEMO
+from calcdoc.render.memo import MEMO, data_digest
 from calcdoc.render.parts import plan_parts
 from calcdoc.render.printed import print_check
 
@@ -48,6 +48,7 @@ class BuildReport:
     files: list[str] = field(default_factory=list)
     computed: list[str] = field(default_factory=list)  # blocks whose compute ran
     restored: list[str] = field(default_factory=list)  # blocks the cache gave back
+    views_kept: list[str] = field(default_factory=list)  # sheets whose views it gave back
 
 
 def final_refusals(package: Package) -> list[str]:
@@ -146,11 +147,12 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         results_text = dumps(results_document(package))
         (tmp / "results.json").write_text(results_text, encoding="utf-8")
         drawings = Drawings(project.precision, project.units)
+        kept_views = KeptViews(store, sheet_keys, loaded) if store is not None else None
         with drawings.drawing_ahead(package, jobs) as ahead:
             if ahead:
                 current().show(f"site: drawing {ahead} figures on {jobs} processes while the "
                                "sheets are typeset", force=True)
-            render_site(package_view(package, "site", drawings, changes), tmp)
+            render_site(package_view(package, "site", drawings, changes, kept_views), tmp)
         timings["html"] = time.perf_counter() - t
         if pdf:
             t = time.perf_counter()
@@ -159,7 +161,7 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
             from calcdoc.render.pdf import in_parts, write_pdf
             # the print document beside the PDF: what WeasyPrint renders, with the site's
             # stylesheet (assets/style.css), for a reviewer or a benchmark to render again
-            print_view = package_view(package, "pdf", drawings, changes)
+            print_view = package_view(package, "pdf", drawings, changes, kept_views)
             html = render_package_html(print_view)
             (tmp / "package.html").write_text(html, encoding="utf-8")
             attachments = sorted(inputs.items()) + [("results.json", results_text.encode())]
@@ -199,6 +201,8 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         for key, data in store.pending_blocks.items():
             store.store_json("blocks", key, data)
         _keep_printed(store, package, printed)
+        for key, data in kept_views.pending.items():
+            store.store_json("views", key, data, sort_keys=False)
         for sheet_id, key in sheet_keys.items():
             if MEMO.used.get(sheet_id, {}) != (loaded.get(sheet_id) or {}):
                 store.store_sheet(key, MEMO.used.get(sheet_id, {}))
@@ -209,7 +213,49 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     timings["total"] = time.perf_counter() - t0
     files = sorted(str(p.relative_to(out)) for p in out.rglob("*") if p.is_file())
     computed, restored = (store.computed_blocks, store.restored_blocks) if store else ([], [])
-    return BuildReport(out, package, timings, files, list(computed), list(restored))
+    views_kept = list(dict.fromkeys(kept_views.restored)) if store is not None else []
+    return BuildReport(out, package, timings, files, list(computed), list(restored), views_kept)
+
+
+class KeptViews:
+    """The views of each sheet's blocks (formatted numbers, typeset steps, figures, as the
+    templates take them) kept in the build cache, for :func:`calcdoc.render.html.package_view`:
+    a sheet whose file, resolved inputs, blocks' keys (and so what each refers to) and context
+    (target, citation numbers so far, review comments on it, revision) are as before gets its
+    views back instead of building them; those built are kept once the build has succeeded."""
+
+    def __init__(self, store: BuildCache, sheet_keys: dict[str, str],
+                 loaded: dict[str, dict | None]):
+        self.store, self.sheet_keys, self.loaded = store, sheet_keys, loaded
+        self.pending: dict[str, dict] = {}  # written if the build succeeds
+        self.restored: list[str] = []  # sheets whose views came back (site and PDF)
+
+    def key(self, sheet, context: list) -> str | None:
+        block_keys = [self.store.block_keys.get(b.key) for b in sheet.blocks]
+        sheet_key = self.sheet_keys.get(sheet.id)
+        if sheet_key is None or None in block_keys:
+            return None
+        return data_digest(self.store.salt, sheet_key, block_keys, context)
+
+    def load(self, key: str, sheet_id: str) -> tuple[list, dict] | None:
+        from calcdoc.stored import Unstorable, restore_view
+        try:
+            blocks, cited = restore_view(self.store.load_json("views", key))
+        except Unstorable:  # missing (None) or not of that form
+            return None
+        # the sheet's typeset answers are kept as they were (its views are not built to note
+        # them again)
+        used = MEMO.used.setdefault(sheet_id, {})
+        for space, entries in (self.loaded.get(sheet_id) or {}).items():
+            used.setdefault(space, {}).update(entries)
+        self.restored.append(sheet_id)
+        return blocks, cited
+
+    def keep(self, key: str, blocks: list, cited: dict) -> None:
+        from calcdoc.stored import encode_view
+        data = encode_view(blocks, cited)
+        if data is not None:
+            self.pending[key] = data
 
 
 def _seed_printed(store: BuildCache, package: Package) -> dict[str, str]:

@@ -276,9 +276,10 @@ class BuildCache:
         except ValueError:
             return None
 
-    def store_json(self, kind: str, key: str, data) -> None:
+    def store_json(self, kind: str, key: str, data, sort_keys: bool = True) -> None:
+        """Write JSON data (``sort_keys`` False: mappings in their order, as views need)."""
         self._write(kind, key, ".json",
-                    json.dumps(data, ensure_ascii=False, sort_keys=True).encode("utf-8"))
+                    json.dumps(data, ensure_ascii=False, sort_keys=sort_keys).encode("utf-8"))
 
     def printed_key(self, block_key: str, sig: int, system: str) -> str:
         """The key of a block's steps as printed: the block's key, the significant figures and

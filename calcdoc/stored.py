@@ -20,15 +20,17 @@ import sys
 from array import array
 
 import numpy as np
+from markupsafe import Markup
 
 from calcdoc.data import (Axis, Band, Box, Contours, FigureData, Line, Mark, Phrase, Point, Step,
                           Value)
+from calcdoc.errors import Location
 from calcdoc.kinds.base import BlockOutput, ResultSpec, ResultValue, Series
 from calcdoc.references import Cite
 from calcdoc.render.printed import Printed, PrintedStep
 
 __all__ = ["encode_output", "restore_output", "encode_printed", "restore_printed",
-           "Unstorable"]
+           "encode_view", "restore_view", "Unstorable"]
 
 FORMAT = 2
 _CLASSES = {cls.__name__: cls for cls in (Value, Phrase, Step, Axis, Line, Band, Box, Mark, Point,
@@ -262,3 +264,80 @@ def restore_printed(data) -> list:
     if type(steps) is not list or not all(type(s) is PrintedStep for s in steps):
         raise Unstorable("not a list of printed steps")
     return steps
+
+
+# the data classes a view holds: a number as printed, where an input was written, a source
+_VIEW_CLASSES = {cls.__name__: cls for cls in (Printed, Location, Cite)}
+_VIEW_FIELDS = {name: frozenset(f.name for f in dataclasses.fields(cls))
+                for name, cls in _VIEW_CLASSES.items()}
+
+
+def _encode_view(value):
+    kind = type(value)
+    if kind is str or kind is int or kind is float or kind is bool or value is None:
+        return value
+    if kind is Markup:  # HTML made by calcdoc, printed as it stands
+        return {"$m": str(value)}
+    if kind is list:
+        return [_encode_view(v) for v in value]
+    if kind is tuple:
+        return {"$t": [_encode_view(v) for v in value]}
+    if kind is dict:
+        if not all(type(k) is str and not k.startswith("$") for k in value):
+            raise Unstorable("a view's mapping with keys other than names")
+        return {k: _encode_view(v) for k, v in value.items()}
+    if _VIEW_CLASSES.get(kind.__name__) is kind:
+        return {"$c": kind.__name__, "f": {f.name: _encode_view(getattr(value, f.name))
+                                           for f in dataclasses.fields(value)}}
+    raise Unstorable(f"no stored form for {kind.__name__} in a view")
+
+
+def _restore_view(value):
+    kind = type(value)
+    if kind in _LEAVES:
+        return value
+    if kind is list:
+        return [v if type(v) in _LEAVES else _restore_view(v) for v in value]
+    if kind is not dict:
+        raise Unstorable(f"unexpected {kind.__name__}")
+    if len(value) == 1 and "$m" in value:
+        if type(value["$m"]) is not str:
+            raise Unstorable("markup text expected")
+        return Markup(value["$m"])
+    if len(value) == 1 and "$t" in value:
+        return tuple(_restore_view(v) for v in _list(value["$t"]))
+    if len(value) == 2 and "$c" in value:
+        name, fields = value["$c"], value.get("f")
+        cls = _VIEW_CLASSES.get(name) if type(name) is str else None
+        if cls is None or type(fields) is not dict or fields.keys() != _VIEW_FIELDS[name]:
+            raise Unstorable(f"unknown stored class {name!r} in a view")
+        return cls(**{k: _restore_view(v) for k, v in fields.items()})
+    if any(k.startswith("$") for k in value):
+        raise Unstorable("unknown tag in a view")
+    return {k: v if type(v) in _LEAVES else _restore_view(v) for k, v in value.items()}
+
+
+def encode_view(blocks: list, cited: dict) -> dict | None:
+    """Return the views of a sheet's blocks (:func:`calcdoc.render.html.package_view`: names,
+    numbers, text, Markup, lists, tuples) and what they cited as JSON data, or None when part
+    of it cannot be kept."""
+    try:
+        return {"format": FORMAT, "blocks": _encode_view(blocks), "cited": _encode_view(cited)}
+    except Unstorable:
+        return None
+
+
+def restore_view(data) -> tuple[list, dict]:
+    """Return the blocks' views and citations :func:`encode_view` kept; raise Unstorable
+    otherwise."""
+    if not isinstance(data, dict) or set(data) != {"format", "blocks", "cited"} \
+            or data["format"] != FORMAT:
+        raise Unstorable("not a stored view")
+    blocks, cited = _restore_view(data["blocks"]), _restore_view(data["cited"])
+    if type(blocks) is not list or not all(type(b) is dict for b in blocks):
+        raise Unstorable("a list of block views expected")
+    if type(cited) is not dict or set(cited) != {"numbers", "uses", "project"} or not all(
+            type(v) is list and all(type(p) is list and len(p) == 2 for p in v)
+            for v in cited.values()):
+        raise Unstorable("citations expected")
+    return blocks, cited

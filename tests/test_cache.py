@@ -66,6 +66,7 @@ def warm_and_cold(tmp_path_factory):
     report = build(root, base / "out", pdf=True)
     computed = dict(MEMO.computed)
     computed["blocks"] = (report.computed, report.restored)
+    computed["views"] = report.views_kept
     build(root, base / "cold", pdf=True, cache=False)
     return base / "out", base / "cold", computed
 
@@ -93,6 +94,37 @@ def test_warm_rebuild_computes_only_the_changed_block_and_the_block_that_refers_
     ran, given_back = computed["blocks"]
     assert sorted(ran) == ["EW1.wall", "HG1.gains"]  # EW1 changed; HG1 takes EW1's U
     assert given_back == ["FW1.wall"]
+
+
+def test_warm_rebuild_builds_the_views_of_the_changed_sheets_only(warm_and_cold):
+    """FW1's blocks' views (numbers formatted, steps typeset, figures) come back whole, for
+    the site and the PDF; EW1's and HG1's are built again (and the outputs are still the cold
+    build's bytes: test above)."""
+    _, _, computed = warm_and_cold
+    assert computed["views"] == ["FW1"]
+
+
+def test_view_entry_reads_back_only_what_it_knows():
+    from markupsafe import Markup
+
+    from calcdoc.render.printed import Printed
+    from calcdoc.stored import Unstorable, encode_view, restore_view
+    blocks = [{"key": "EW1.wall", "html": Markup("<b>U</b>"), "text": "<b>U</b>",
+               "pair": (1, 2.5), "shown": Printed("0.273", "W/(m^2*K)"), "none": None}]
+    cited = {"numbers": [["ISO 6946:2017", 1]], "uses": [[1, ["EW1.wall"]]], "project": []}
+    data = json.loads(json.dumps(encode_view(blocks, cited)))
+    again, cited_again = restore_view(data)
+    assert again == blocks and cited_again == cited
+    assert type(again[0]["html"]) is Markup and type(again[0]["text"]) is str  # escaped
+    assert type(again[0]["pair"]) is tuple
+    assert encode_view([{"$m": "key of a tag"}], cited) is None
+    assert encode_view([{"obj": object()}], cited) is None
+    for forged in ({"$c": "Popen", "f": {"args": "rm -rf /"}},
+                   {"$c": "Printed", "f": {"number": "1"}},  # a field missing
+                   {"$x": "unknown tag"}, {"$m": 1}):
+        with pytest.raises(Unstorable):
+            restore_view({"format": data["format"], "blocks": [{"v": forged}],
+                          "cited": cited})
 
 
 def test_every_block_of_the_demo_is_kept_and_given_back_exactly():

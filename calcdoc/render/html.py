@@ -124,6 +124,30 @@ class Citations:
                         uses.append(used_in)
         return {"text": "; ".join(text), "refs": refs}
 
+    def mark(self) -> tuple:
+        """Where the citations stand now, for :meth:`since`."""
+        return (set(self.numbers), {n: len(u) for n, u in self.uses.items()},
+                {t: len(u) for t, u in self.project.items()})
+
+    def since(self, mark: tuple) -> dict:
+        """What was cited after ``mark`` (documents numbered, uses noted), as JSON data that
+        :meth:`replay` applies again: a sheet whose view comes from the build cache cites
+        exactly what it cited when the view was built."""
+        documents, uses, project = mark
+        return {"numbers": [[d, n] for d, n in self.numbers.items() if d not in documents],
+                "uses": [[n, u[uses.get(n, 0):]] for n, u in self.uses.items()
+                         if len(u) > uses.get(n, 0)],
+                "project": [[t, u[project.get(t, 0):]] for t, u in self.project.items()
+                            if t not in project or len(u) > project[t]]}
+
+    def replay(self, cited: dict) -> None:
+        for document, n in cited["numbers"]:
+            self.numbers[document] = n
+        for n, uses in cited["uses"]:
+            self.uses.setdefault(n, []).extend(uses)
+        for text, uses in cited["project"]:
+            self.project.setdefault(text, []).extend(uses)
+
     def listing(self) -> list[dict]:
         return [{"n": n, "text": text, "uses": self.uses.get(n, [])}
                 for text, n in sorted(self.numbers.items(), key=lambda kv: kv[1])]
@@ -749,8 +773,12 @@ def _signoff_view(signoff: dict, current_rev: str) -> dict:
 
 
 def package_view(package, target: str = "site", drawings: "Drawings | None" = None,
-                 changes=None) -> dict:
-    """Return the whole package as view data for the templates (``target``: site | pdf)."""
+                 changes=None, kept_views=None) -> dict:
+    """Return the whole package as view data for the templates (``target``: site | pdf).
+
+    ``kept_views`` (:class:`calcdoc.build.KeptViews`) gives back the blocks' views of a sheet
+    whose every input, block and context is as when they were built (the citations it made
+    replayed), and keeps those built afresh; not used when ``changes`` are marked."""
     if target not in ("site", "pdf"):
         raise ValueError(f"target must be site or pdf, got {target!r}")
     project = package.project
@@ -778,9 +806,25 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         _progress.current().show(f"{stage}: sheet {sheet.spec.id} ({index + 1} of "
                                  f"{len(package.sheets)}), typesetting its blocks", force=True)
         shared: dict = {}  # a list input written once and used by several blocks prints once
-        with MEMO.recording(sheet.spec.id):
-            blocks = [_block_view(b, cites, math, comments_on, links, sig, system, drawings,
-                                  shared) for b in sheet.blocks]
+        kept = key = None
+        if kept_views is not None and not changes:
+            # everything a block's view depends on besides the sheet and its blocks' own keys
+            context = [target, sorted(links.sheets) if links.sheets is not None else None,
+                       sorted(cites.numbers.items()), current,
+                       [comments_on.get(k, []) for k in [sheet.id] + [b.key for b in
+                                                                      sheet.blocks]]]
+            key = kept_views.key(sheet, context)
+            kept = kept_views.load(key, sheet.id) if key is not None else None
+        if kept is not None:
+            blocks, cited = kept
+            cites.replay(cited)
+        else:
+            before = cites.mark()
+            with MEMO.recording(sheet.spec.id):
+                blocks = [_block_view(b, cites, math, comments_on, links, sig, system,
+                                      drawings, shared) for b in sheet.blocks]
+            if key is not None:
+                kept_views.keep(key, blocks, cites.since(before))
         if changes:
             _mark_changes(blocks, changes.keys(), current)
         spec = sheet.spec

@@ -93,6 +93,9 @@ def memoised(space: str, encode: Callable = lambda v: v, decode: Callable = lamb
     return wrap
 
 
+_FIELD_NAMES: dict[type, tuple | bool] = {}  # a data class's field names (False: not one)
+
+
 def _canonical(obj: Any) -> Any:
     """A JSON form of figure data that two equal data give alike (floats exactly, arrays by
     their bytes); TypeError for anything else, which is then drawn without a cache."""
@@ -108,9 +111,12 @@ def _canonical(obj: Any) -> Any:
             packed = _doubles("d", obj).tobytes()
             return [kind.__name__ + "-f", hashlib.sha256(packed).hexdigest()]
         return [kind.__name__, [_canonical(v) for v in obj]]
-    if dataclasses.is_dataclass(obj) and not isinstance(obj, type):
-        return [type(obj).__name__, {f.name: _canonical(getattr(obj, f.name))
-                                     for f in dataclasses.fields(obj)}]
+    names = _FIELD_NAMES.get(kind)
+    if names is None:
+        names = _FIELD_NAMES[kind] = tuple(f.name for f in dataclasses.fields(obj)) if (
+            dataclasses.is_dataclass(obj) and not isinstance(obj, type)) else False
+    if names:
+        return [kind.__name__, {name: _canonical(getattr(obj, name)) for name in names}]
     if isinstance(obj, np.ndarray):
         array = np.ascontiguousarray(obj)
         if array.dtype == object:
