@@ -49,6 +49,7 @@ class BuildReport:
     computed: list[str] = field(default_factory=list)  # blocks whose compute ran
     restored: list[str] = field(default_factory=list)  # blocks the cache gave back
     views_kept: list[str] = field(default_factory=list)  # sheets whose views it gave back
+    pages_kept: list[str] = field(default_factory=list)  # sheets whose site page it gave back
 
 
 def final_refusals(package: Package) -> list[str]:
@@ -148,11 +149,13 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         (tmp / "results.json").write_text(results_text, encoding="utf-8")
         drawings = Drawings(project.precision, project.units)
         kept_views = KeptViews(store, sheet_keys, loaded) if store is not None else None
+        kept_pages = KeptPages(store, kept_views) if store is not None else None
         with drawings.drawing_ahead(package, jobs) as ahead:
             if ahead:
                 current().show(f"site: drawing {ahead} figures on {jobs} processes while the "
                                "sheets are typeset", force=True)
-            render_site(package_view(package, "site", drawings, changes, kept_views), tmp)
+            render_site(package_view(package, "site", drawings, changes, kept_views), tmp,
+                        kept_pages)
         timings["html"] = time.perf_counter() - t
         if pdf:
             t = time.perf_counter()
@@ -201,12 +204,15 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
         for key, data in store.pending_blocks.items():
             store.store_json("blocks", key, data)
         _keep_printed(store, package, printed)
-        for key, data in kept_views.pending.items():
-            store.store_json("views", key, data, sort_keys=False)
+        for (kind, key), data in kept_views.pending.items():
+            store.store_json(kind, key, data, sort_keys=False)
+        for key, text in kept_pages.pending.items():
+            store.store_page(key, text)
         for sheet_id, key in sheet_keys.items():
             if MEMO.used.get(sheet_id, {}) != (loaded.get(sheet_id) or {}):
                 store.store_sheet(key, MEMO.used.get(sheet_id, {}))
         if not pdf:  # a build without the PDF leaves the PDF's entries for the next that has it
+            store.keep("views-pdf")
             store.keep("pdf")
             store.keep("parts")
         store.prune()
@@ -214,7 +220,9 @@ def build(project_dir: str | Path, out_dir: str | Path | None = None, pdf: bool 
     files = sorted(str(p.relative_to(out)) for p in out.rglob("*") if p.is_file())
     computed, restored = (store.computed_blocks, store.restored_blocks) if store else ([], [])
     views_kept = list(dict.fromkeys(kept_views.restored)) if store is not None else []
-    return BuildReport(out, package, timings, files, list(computed), list(restored), views_kept)
+    pages_kept = list(kept_pages.restored) if store is not None else []
+    return BuildReport(out, package, timings, files, list(computed), list(restored), views_kept,
+                       pages_kept)
 
 
 class KeptViews:
@@ -227,20 +235,25 @@ class KeptViews:
     def __init__(self, store: BuildCache, sheet_keys: dict[str, str],
                  loaded: dict[str, dict | None]):
         self.store, self.sheet_keys, self.loaded = store, sheet_keys, loaded
-        self.pending: dict[str, dict] = {}  # written if the build succeeds
+        self.pending: dict[tuple[str, str], dict] = {}  # (kind, key): written on success
         self.restored: list[str] = []  # sheets whose views came back (site and PDF)
+        self.keys: dict[tuple[str, str], str] = {}  # (target, sheet) → its views' key
 
     def key(self, sheet, context: list) -> str | None:
+        """The key of a sheet's blocks' views; ``context[0]`` is the target."""
         block_keys = [self.store.block_keys.get(b.key) for b in sheet.blocks]
         sheet_key = self.sheet_keys.get(sheet.id)
         if sheet_key is None or None in block_keys:
             return None
-        return data_digest(self.store.salt, sheet_key, block_keys, context)
+        key = data_digest(self.store.salt, sheet_key, block_keys, context)
+        if key is not None:
+            self.keys[context[0], sheet.id] = key
+        return key
 
-    def load(self, key: str, sheet_id: str) -> tuple[list, dict] | None:
+    def load(self, key: str, sheet_id: str, target: str) -> tuple[list, dict] | None:
         from calcdoc.stored import Unstorable, restore_view
         try:
-            blocks, cited = restore_view(self.store.load_json("views", key))
+            blocks, cited = restore_view(self.store.load_json(f"views-{target}", key))
         except Unstorable:  # missing (None) or not of that form
             return None
         # the sheet's typeset answers are kept as they were (its views are not built to note
@@ -251,11 +264,36 @@ class KeptViews:
         self.restored.append(sheet_id)
         return blocks, cited
 
-    def keep(self, key: str, blocks: list, cited: dict) -> None:
+    def keep(self, key: str, target: str, blocks: list, cited: dict) -> None:
         from calcdoc.stored import encode_view
         data = encode_view(blocks, cited)
         if data is not None:
-            self.pending[key] = data
+            self.pending[f"views-{target}", key] = data
+
+
+class KeptPages:
+    """Each sheet's site page kept in the build cache, for
+    :func:`calcdoc.render.html.render_site`: under the key of its blocks' views and all else the
+    page shows (its sheet's entries, the sidebar, its neighbours, the package entries of
+    ``SHEET_PAGE_VIEW``); written once the build has succeeded."""
+
+    def __init__(self, store: BuildCache, views: KeptViews):
+        self.store, self.views = store, views
+        self.pending: dict[str, str] = {}
+        self.restored: list[str] = []
+
+    def key(self, sheet_id: str, seen: list) -> str | None:
+        views = self.views.keys.get(("site", sheet_id))
+        return data_digest(self.store.salt, views, seen) if views is not None else None
+
+    def load(self, key: str, sheet_id: str) -> str | None:
+        text = self.store.load_page(key)
+        if text is not None:
+            self.restored.append(sheet_id)
+        return text
+
+    def keep(self, key: str, text: str) -> None:
+        self.pending[key] = text
 
 
 def _seed_printed(store: BuildCache, package: Package) -> dict[str, str]:

@@ -286,6 +286,16 @@ class BuildCache:
         the unit system, and the view's salt."""
         return data_digest(self.salt, block_key, sig, system)
 
+    def load_page(self, key: str) -> str | None:
+        content = self._read("pages", key, ".html")
+        try:
+            return content.decode("utf-8") if content is not None else None
+        except UnicodeDecodeError:
+            return None
+
+    def store_page(self, key: str, text: str) -> None:
+        self._write("pages", key, ".html", text.encode("utf-8"))
+
     def load_pdf(self, key: str) -> bytes | None:
         return self._read("pdf", key, ".pdf")
 
@@ -320,7 +330,8 @@ class BuildCache:
 
     def prune(self) -> None:
         """Remove the entries this build did not use: the cache holds one build's worth."""
-        for kind in ("blocks", "printed", "sheets", "pdf", "parts"):
+        for kind in ("blocks", "printed", "sheets", "views-site", "views-pdf", "pages", "pdf",
+                     "parts"):
             if kind in self.kept:
                 continue
             folder = self.folder / kind

@@ -67,6 +67,7 @@ def warm_and_cold(tmp_path_factory):
     computed = dict(MEMO.computed)
     computed["blocks"] = (report.computed, report.restored)
     computed["views"] = report.views_kept
+    computed["pages"] = report.pages_kept
     build(root, base / "cold", pdf=True, cache=False)
     return base / "out", base / "cold", computed
 
@@ -102,6 +103,9 @@ def test_warm_rebuild_builds_the_views_of_the_changed_sheets_only(warm_and_cold)
     build's bytes: test above)."""
     _, _, computed = warm_and_cold
     assert computed["views"] == ["FW1"]
+    # its site page is kept too, and written again only when something on it changed: FW1's
+    # sidebar lists EW1 and HG1, whose entries (titles, failing checks, open comments) did not
+    assert computed["pages"] == ["FW1"]
 
 
 def test_view_entry_reads_back_only_what_it_knows():
@@ -319,3 +323,22 @@ def test_figure_digest_tells_data_apart_and_equal_data_alike():
     assert data_digest(np.array([1.0, 2.0])) != data_digest(np.array([1.0, 2.0000001]))
     assert data_digest([1.0]) != data_digest((1.0,)) != data_digest([1])
     assert data_digest(object()) is None  # unknown data: drawn without a cache
+
+
+def test_a_sheet_page_is_written_again_when_its_sidebar_changes(tmp_path):
+    """EW1's title changed: EW1's views are built again (its heading) and every page is
+    written again, FW1's too (its sidebar names EW1), though FW1's views come back; the site is
+    the bytes of a build without the cache."""
+    root = small_project(tmp_path / "proj")
+    out = tmp_path / "out"
+    build(root, out, pdf=False)
+    path = root / "sheets" / "ew1.yaml"
+    text = path.read_text(encoding="utf-8")
+    old = "title: External wall EW-1 of the packing hall"
+    assert old in text
+    path.write_text(text.replace(old, "title: External wall EW-1 of the dispatch hall", 1),
+                    encoding="utf-8")
+    report = build(root, out, pdf=False)
+    assert "FW1" in report.views_kept and report.pages_kept == []
+    assert files_of(out) == _html_build(root, tmp_path / "cold", cache=False)
+    assert "EW-1 of the dispatch hall" in (out / "sheet-FW1.html").read_text(encoding="utf-8")

@@ -814,7 +814,7 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
                        [comments_on.get(k, []) for k in [sheet.id] + [b.key for b in
                                                                       sheet.blocks]]]
             key = kept_views.key(sheet, context)
-            kept = kept_views.load(key, sheet.id) if key is not None else None
+            kept = kept_views.load(key, sheet.id, target) if key is not None else None
         if kept is not None:
             blocks, cited = kept
             cites.replay(cited)
@@ -824,7 +824,7 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
                 blocks = [_block_view(b, cites, math, comments_on, links, sig, system,
                                       drawings, shared) for b in sheet.blocks]
             if key is not None:
-                kept_views.keep(key, blocks, cites.since(before))
+                kept_views.keep(key, target, blocks, cites.since(before))
         if changes:
             _mark_changes(blocks, changes.keys(), current)
         spec = sheet.spec
@@ -878,6 +878,7 @@ def package_view(package, target: str = "site", drawings: "Drawings | None" = No
         "preliminary": not revision.approved.strip(),
         "preliminary_text": PRELIMINARY,
         "sheets": sheets,
+        "sheet_count": len(sheets),
         "checks": all_checks,
         "failed": sum(1 for c in all_checks if not c["passed"]),
         "references": references,
@@ -949,8 +950,23 @@ def environment() -> jinja2.Environment:
     return env
 
 
-def render_site(view: dict, out_dir: Path) -> list[Path]:
-    """Write index.html, one page per sheet and the stylesheet; return the files written."""
+# What a sheet's page shows of the package besides its own sheet and the sidebar (a page sees
+# only these, so a page kept in the build cache under them and its sheet is that page)
+SHEET_PAGE_VIEW = ("calcdoc_version", "caution", "index_prefix", "package", "partial",
+                   "preliminary", "preliminary_text", "project", "revision", "sheet_count",
+                   "target")
+# the sheet's own entries a page shows, besides its blocks' views (kept under their own key)
+_SHEET_PAGE_FIELDS = ("id", "title", "file", "page", "href", "notes", "signoff",
+                      "signoff_state", "signed_off", "failed", "comments", "comment_count",
+                      "open_comments", "checked_current", "cautions", "index")
+
+
+def render_site(view: dict, out_dir: Path, kept_pages=None) -> list[Path]:
+    """Write index.html, one page per sheet and the stylesheet; return the files written.
+
+    ``kept_pages`` (:class:`calcdoc.build.KeptPages`) gives back a sheet's page when its
+    blocks' views, its own entries, the sidebar, its neighbours and the package entries it
+    shows are as when it was written, and keeps those written afresh."""
     env = environment()
     written = []
     (out_dir / "assets").mkdir(parents=True, exist_ok=True)
@@ -966,12 +982,24 @@ def render_site(view: dict, out_dir: Path) -> list[Path]:
         encoding="utf-8")
     written.append(index)
     template = env.get_template("sheet.html")
+    page_view = {name: view[name] for name in SHEET_PAGE_VIEW}
     for sheet in view["sheets"]:
         _progress.current().show(f"site: writing {sheet['page']}")
         path = out_dir / sheet["page"]
-        path.write_text(template.render(view=view, sheet=sheet, page=sheet["page"],
-                                        nav=_nav(entries, sheet["index"], view["sheets"])),
-                        encoding="utf-8")
+        nav = _nav(entries, sheet["index"], view["sheets"])
+        key = text = None
+        if kept_pages is not None:
+            seen = [page_view, {name: sheet[name] for name in _SHEET_PAGE_FIELDS},
+                    [[s["id"], s["title"], s["page"]] if s else None
+                     for s in (sheet["previous"], sheet["next"])],
+                    str(nav["before"]), str(nav["after"])]
+            key = kept_pages.key(sheet["id"], seen)
+            text = kept_pages.load(key, sheet["id"]) if key is not None else None
+        if text is None:
+            text = template.render(view=page_view, sheet=sheet, page=sheet["page"], nav=nav)
+            if key is not None:
+                kept_pages.keep(key, text)
+        path.write_text(text, encoding="utf-8")
         written.append(path)
     return written
 
